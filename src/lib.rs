@@ -1,0 +1,8 @@
+//! attest: preregister a two-group comparison, lock it, run it unchanged,
+//! and render an audit-ready report.
+//!
+//! The pipeline reads top to bottom: `plan` → `lock` → `data` → `stats` →
+//! `results` → `render`, driven by `pipeline` and exposed by `cli`.
+#![warn(missing_docs)]
+
+pub mod stats;

@@ -1,0 +1,117 @@
+//! The statistics engine: pure functions over `&[f64]`, no I/O, no text.
+//!
+//! Every function here takes numbers and returns numbers (or a typed
+//! [`StatsError`]). Nothing formats, prints or reads files; the `results`
+//! module turns these values into the serialisable model and the renderers
+//! turn that into words. One module per family keeps each published
+//! algorithm next to its citation and its tests.
+
+pub mod describe;
+pub mod dist;
+
+use serde::{Deserialize, Serialize};
+
+/// Direction of the alternative hypothesis for `first − second`
+/// (or `outcome − reference` for one-sample designs).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Alternative {
+    /// The difference is not zero.
+    TwoSided,
+    /// The difference is greater than zero.
+    Greater,
+    /// The difference is less than zero.
+    Less,
+}
+
+impl Alternative {
+    /// The alternative seen from the other group (swap first and second).
+    pub fn flipped(self) -> Self {
+        match self {
+            Alternative::TwoSided => Alternative::TwoSided,
+            Alternative::Greater => Alternative::Less,
+            Alternative::Less => Alternative::Greater,
+        }
+    }
+
+    /// The plain name used in plans and results (`two-sided`, `greater`, `less`).
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Alternative::TwoSided => "two-sided",
+            Alternative::Greater => "greater",
+            Alternative::Less => "less",
+        }
+    }
+}
+
+/// A confidence interval whose open side (for one-sided tests) is `None`.
+///
+/// `low == None` means the interval reaches −∞, `high == None` that it
+/// reaches +∞. With a one-sided test the interval is one-sided too, so it
+/// excludes the null value exactly when p < alpha.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Interval {
+    /// Lower bound, or `None` for −∞.
+    pub low: Option<f64>,
+    /// Upper bound, or `None` for +∞.
+    pub high: Option<f64>,
+    /// Confidence level, e.g. 0.95.
+    pub level: f64,
+}
+
+/// How a p value was obtained.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum PMethod {
+    /// From the exact permutation distribution of the statistic.
+    Exact,
+    /// From the normal approximation (with tie and continuity correction).
+    NormalApproximation,
+}
+
+/// Why a statistic could not be computed. Each variant is a distinct,
+/// reportable situation; none of them is a bug.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+pub enum StatsError {
+    /// Fewer observations than the method needs.
+    #[error("needs at least {needed} values, has {got}")]
+    TooFew {
+        /// Minimum number of observations the method needs.
+        needed: usize,
+        /// Number of observations given.
+        got: usize,
+    },
+    /// A value is NaN or infinite.
+    #[error("contains a value that is not a finite number")]
+    NonFinite,
+    /// Every value is the same, so the spread is zero.
+    #[error("all values are identical, so the spread is zero")]
+    ZeroVariance,
+    /// Every paired difference (or difference from the reference) is zero.
+    #[error("every difference is zero")]
+    AllZero,
+    /// A parameter (alpha, level, df, …) is outside its valid range.
+    #[error("parameter out of range: {0}")]
+    BadParameter(&'static str),
+}
+
+/// Checks that every value is finite.
+pub fn ensure_finite(x: &[f64]) -> Result<(), StatsError> {
+    if x.iter().all(|v| v.is_finite()) {
+        Ok(())
+    } else {
+        Err(StatsError::NonFinite)
+    }
+}
+
+/// The one-sided tail probability `P(T ≥ t)`/`P(T ≤ t)` or the two-sided
+/// `2·min(…)` for a symmetric reference distribution, from its survival
+/// function `sf`. Upper tails are computed directly, never as `1 − cdf`.
+pub fn p_from_symmetric(stat: f64, alternative: Alternative, sf: impl Fn(f64) -> f64) -> f64 {
+    let p = match alternative {
+        Alternative::Greater => sf(stat),
+        Alternative::Less => sf(-stat),
+        Alternative::TwoSided => 2.0 * sf(stat.abs()),
+    };
+    p.clamp(0.0, 1.0)
+}
