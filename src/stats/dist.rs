@@ -152,8 +152,9 @@ fn as241(p: f64) -> f64 {
 /// Student t upper tail `P(T ≥ t)` with `df > 0` degrees of freedom.
 ///
 /// Uses the incomplete-beta identities (Abramowitz & Stegun 26.7.1):
-/// for large |t| the tail is `½·I_{df/(df+t²)}(df/2, ½)`, near zero it is
-/// `½ − ½·I_{t²/(df+t²)}(½, df/2)`, so neither side subtracts from one.
+/// in the tail it is `½·I_{df/(df+t²)}(df/2, ½)`, near zero
+/// `½ − ½·I_{t²/(df+t²)}(½, df/2)`; the switch happens before the
+/// subtraction could cancel, so neither side loses relative accuracy.
 pub fn t_sf(t: f64, df: f64) -> f64 {
     if t.is_nan() || df.is_nan() || df <= 0.0 {
         return f64::NAN;
@@ -168,11 +169,13 @@ pub fn t_sf(t: f64, df: f64) -> f64 {
         return normal_sf(t);
     }
     let t2 = t * t;
-    let tail = if t2 > df {
-        // Far tail: x = df/(df+t²) is small and the beta function is accurate.
-        0.5 * beta_reg(0.5 * df, 0.5, df / (df + t2))
+    // Near zero the tail is close to ½ and ½ − ½·I loses nothing; once that
+    // subtraction would cancel (tail below ¼) the direct form is used.
+    let near = beta_reg(0.5, 0.5 * df, t2 / (df + t2));
+    let tail = if near < 0.5 {
+        0.5 - 0.5 * near
     } else {
-        0.5 - 0.5 * beta_reg(0.5, 0.5 * df, t2 / (df + t2))
+        0.5 * beta_reg(0.5 * df, 0.5, df / (df + t2))
     };
     if t >= 0.0 {
         tail
