@@ -5,4 +5,6 @@
 //! `results` → `render`, driven by `pipeline` and exposed by `cli`.
 #![warn(missing_docs)]
 
+pub mod error;
+pub mod plan;
 pub mod stats;

@@ -8,6 +8,7 @@
 
 pub mod describe;
 pub mod dist;
+pub mod multiplicity;
 
 use serde::{Deserialize, Serialize};
 

@@ -1,0 +1,215 @@
+//! Errors a user sees, with where they happened and what to do next.
+//!
+//! Every failure that reaches the terminal is a [`Failure`]: a sentence
+//! saying what is wrong, an optional position (file, line, column), an
+//! optional `help:` line, and a [`Kind`] that decides the exit code. The
+//! exit codes are part of the interface and documented in the README:
+//!
+//! | code | meaning |
+//! |---|---|
+//! | 0 | success |
+//! | 1 | bad input: the plan, the data, the lock or the command line |
+//! | 2 | verification failed: something did not reproduce or changed |
+//! | 3 | an internal error or an I/O failure of the machine (disk full, …) |
+
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+/// What kind of failure this is; decides the exit code.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Kind {
+    /// The plan, the data, the lock or the command line is not usable (exit 1).
+    Input,
+    /// `verify` or `--check-unchanged` found a difference (exit 2).
+    Verification,
+    /// Something failed that the user could not have caused (exit 3).
+    Internal,
+}
+
+impl Kind {
+    /// The process exit code for this kind.
+    pub fn exit_code(self) -> i32 {
+        match self {
+            Kind::Input => 1,
+            Kind::Verification => 2,
+            Kind::Internal => 3,
+        }
+    }
+}
+
+/// A position inside a file, 1-based; `line`/`column` are absent when the
+/// failure concerns the whole file.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Location {
+    /// The file, as the user named it (relative where possible).
+    pub file: PathBuf,
+    /// 1-based line number.
+    pub line: Option<usize>,
+    /// 1-based column number.
+    pub column: Option<usize>,
+}
+
+impl fmt::Display for Location {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{}", self.file.display())?;
+        if let Some(line) = self.line {
+            write!(f, ":{line}")?;
+            if let Some(col) = self.column {
+                write!(f, ":{col}")?;
+            }
+        }
+        Ok(())
+    }
+}
+
+/// A failure as the user reads it: `error: <where>: <what>` then `help: …`.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Failure {
+    /// What went wrong, in one sentence.
+    pub what: String,
+    /// Where, if a place exists.
+    pub location: Option<Location>,
+    /// What to do next.
+    pub help: Option<String>,
+    /// Decides the exit code.
+    pub kind: Kind,
+}
+
+impl Failure {
+    /// A bad-input failure with no location.
+    pub fn input(what: impl Into<String>) -> Self {
+        Failure {
+            what: what.into(),
+            location: None,
+            help: None,
+            kind: Kind::Input,
+        }
+    }
+
+    /// An internal failure (I/O of the machine, a broken invariant).
+    pub fn internal(what: impl Into<String>) -> Self {
+        Failure {
+            kind: Kind::Internal,
+            ..Failure::input(what)
+        }
+    }
+
+    /// A verification failure.
+    pub fn verification(what: impl Into<String>) -> Self {
+        Failure {
+            kind: Kind::Verification,
+            ..Failure::input(what)
+        }
+    }
+
+    /// Attaches a file (no line) to the failure.
+    pub fn in_file(mut self, file: impl AsRef<Path>) -> Self {
+        self.location = Some(Location {
+            file: file.as_ref().to_path_buf(),
+            line: None,
+            column: None,
+        });
+        self
+    }
+
+    /// Attaches a file position to the failure.
+    pub fn at(mut self, file: impl AsRef<Path>, line: usize, column: Option<usize>) -> Self {
+        self.location = Some(Location {
+            file: file.as_ref().to_path_buf(),
+            line: Some(line),
+            column,
+        });
+        self
+    }
+
+    /// Adds the `help:` line.
+    pub fn help(mut self, help: impl Into<String>) -> Self {
+        self.help = Some(help.into());
+        self
+    }
+
+    /// A failure to read or write a file, worded for the user.
+    pub fn io(action: &str, path: &Path, err: &std::io::Error) -> Self {
+        let kind = match err.kind() {
+            std::io::ErrorKind::NotFound | std::io::ErrorKind::PermissionDenied => Kind::Input,
+            _ => Kind::Internal,
+        };
+        Failure {
+            what: format!("cannot {action} {}: {}", path.display(), plain_io(err)),
+            location: None,
+            help: None,
+            kind,
+        }
+    }
+}
+
+/// The OS error without Rust's "(os error 2)" suffix.
+fn plain_io(err: &std::io::Error) -> String {
+    let s = err.to_string();
+    match s.find(" (os error") {
+        Some(i) => s[..i].to_string(),
+        None => s,
+    }
+}
+
+impl fmt::Display for Failure {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match &self.location {
+            Some(loc) => write!(f, "error: {loc}: {}", self.what)?,
+            None => write!(f, "error: {}", self.what)?,
+        }
+        if let Some(help) = &self.help {
+            write!(f, "\nhelp: {help}")?;
+        }
+        Ok(())
+    }
+}
+
+impl std::error::Error for Failure {}
+
+/// Result type used across the pipeline.
+pub type Result<T, E = Failure> = std::result::Result<T, E>;
+
+/// Converts a byte offset in `source` to a 1-based (line, column); the
+/// column counts characters, not bytes.
+pub fn line_col(source: &str, offset: usize) -> (usize, usize) {
+    let offset = offset.min(source.len());
+    let before = &source[..floor_char_boundary(source, offset)];
+    let line = before.matches('\n').count() + 1;
+    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
+    let column = before[line_start..].chars().count() + 1;
+    (line, column)
+}
+
+fn floor_char_boundary(s: &str, mut i: usize) -> usize {
+    while i > 0 && !s.is_char_boundary(i) {
+        i -= 1;
+    }
+    i
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn renders_location_and_help() {
+        let f = Failure::input("`alpha` must be between 0 and 1")
+            .at("a.toml", 3, Some(9))
+            .help("write a value such as 0.05");
+        assert_eq!(
+            f.to_string(),
+            "error: a.toml:3:9: `alpha` must be between 0 and 1\nhelp: write a value such as 0.05"
+        );
+        assert_eq!(f.kind.exit_code(), 1);
+    }
+
+    #[test]
+    fn line_col_counts_characters() {
+        let s = "a = 1\nbé = 2\n";
+        assert_eq!(line_col(s, 0), (1, 1));
+        assert_eq!(line_col(s, 6), (2, 1));
+        // 'b' 'é' ' ' → offset of '=' is 6 + 1 + 2 + 1 = 10 → column 4.
+        assert_eq!(line_col(s, 10), (2, 4));
+    }
+}

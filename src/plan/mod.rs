@@ -1,0 +1,290 @@
+//! The analysis plan: what will be compared, how, and at which thresholds.
+//!
+//! A plan is read from a TOML analysis file in three steps, each in its own
+//! module: [`raw`] deserialises the text strictly (unknown keys are errors,
+//! positions are kept), [`validate`] checks meaning and produces the typed
+//! [`Plan`] below with every default filled in, and [`canonical`] writes the
+//! plan in one deterministic form and hashes it, so comments, whitespace and
+//! key order never change the hash while every change of meaning does.
+
+pub mod canonical;
+pub mod raw;
+pub mod validate;
+
+use crate::stats::multiplicity::Correction;
+use crate::stats::Alternative;
+use serde::{Deserialize, Serialize};
+use std::path::PathBuf;
+
+/// The version of the analysis-file format this build reads.
+pub const FORMAT_VERSION: u32 = 1;
+
+/// An analysis file as read from disk: the hashed plan plus what lives
+/// outside the hash (declared deviations) and where it came from.
+#[derive(Clone, Debug)]
+pub struct AnalysisFile {
+    /// The path as the user gave it.
+    pub path: PathBuf,
+    /// The validated plan (the part that is locked and hashed).
+    pub plan: Plan,
+    /// Declared deviations from the locked plan (not hashed).
+    pub deviations: Vec<Deviation>,
+}
+
+/// The validated, defaults-filled plan. Its serialised form is the
+/// canonical plan that the lock stores and hashes.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Plan {
+    /// File-format version (`attest = 1`).
+    pub attest: u32,
+    /// Title of the study.
+    pub title: String,
+    /// Authors, in order.
+    pub authors: Vec<String>,
+    /// Free text shown in the preregistration.
+    pub summary: Option<String>,
+    /// Significance level for every hypothesis.
+    pub alpha: f64,
+    /// Confidence level of every interval.
+    pub confidence: f64,
+    /// Multiplicity correction across the hypotheses of this file.
+    pub correction: Correction,
+    /// Seed for anything resampled.
+    pub seed: u64,
+    /// Significance level of the assumption checks used by `checked`.
+    pub check_alpha: f64,
+    /// Where the data are and how to read them.
+    pub data: DataSpec,
+    /// Exclusion rules, applied in order before any statistic.
+    pub exclude: Vec<ExcludeRule>,
+    /// The hypotheses, in the order the file gives them.
+    pub hypotheses: Vec<Hypothesis>,
+}
+
+/// How to find and read the data file.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct DataSpec {
+    /// Path relative to the analysis file.
+    pub path: String,
+    /// File format; inferred from the extension.
+    pub format: DataFormat,
+    /// Field delimiter for delimited text.
+    pub delimiter: char,
+    /// Decimal mark in numeric cells.
+    pub decimal: char,
+    /// Cell texts that mean "missing".
+    pub missing: Vec<String>,
+    /// Worksheet name for spreadsheets (first sheet when absent).
+    pub sheet: Option<String>,
+}
+
+/// Supported data formats.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DataFormat {
+    /// Delimited text (comma, semicolon, tab, …).
+    Delimited,
+    /// An Excel workbook (`.xlsx`).
+    Xlsx,
+}
+
+/// One preregistered exclusion rule.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct ExcludeRule {
+    /// Why rows are excluded, in the researcher's words (printed in reports).
+    pub reason: String,
+    /// The column the rule looks at.
+    pub column: String,
+    /// What the rule removes.
+    pub rule: ExcludeKind,
+}
+
+/// What an exclusion rule removes.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case", tag = "kind")]
+pub enum ExcludeKind {
+    /// Rows whose value lies below `below` or above `above` (either may be absent).
+    Range {
+        /// Rows with a value strictly below this are removed.
+        below: Option<f64>,
+        /// Rows with a value strictly above this are removed.
+        above: Option<f64>,
+    },
+    /// Rows whose cell text is one of these values.
+    Values {
+        /// The cell texts that exclude a row.
+        values: Vec<String>,
+    },
+    /// Rows farther than `limit` median absolute deviations (scaled by
+    /// 1.4826) from their group's median (Leys et al. 2013).
+    MedianDistance {
+        /// The cut-off in scaled MADs (2.5 or 3 are usual).
+        limit: f64,
+        /// Column whose values define the groups; the whole column when absent.
+        by: Option<String>,
+    },
+    /// Rows outside Tukey's fences, `Q1 − k·IQR` and `Q3 + k·IQR`, per group.
+    TukeyFences {
+        /// The fence multiplier (1.5 is usual).
+        limit: f64,
+        /// Column whose values define the groups; the whole column when absent.
+        by: Option<String>,
+    },
+}
+
+/// The study design of one hypothesis.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Design {
+    /// Two independent groups.
+    Independent,
+    /// Two measurements on the same units.
+    Paired,
+    /// One sample against a reference value.
+    OneSample,
+}
+
+impl Design {
+    /// The name used in analysis files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Design::Independent => "independent",
+            Design::Paired => "paired",
+            Design::OneSample => "one-sample",
+        }
+    }
+}
+
+/// Where the two sets of values of a hypothesis come from.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case", tag = "layout")]
+pub enum Comparison {
+    /// Independent groups: rows with `group == levels[0]` against `levels[1]`.
+    Groups {
+        /// The grouping column.
+        group: String,
+        /// `[first, second]`; effects are first − second.
+        levels: [String; 2],
+    },
+    /// Paired, wide layout: two numeric columns on the same row.
+    PairedColumns {
+        /// Column of the first measurement.
+        first: String,
+        /// Column of the second measurement.
+        second: String,
+    },
+    /// Paired, long layout: one row per measurement.
+    PairedRows {
+        /// Column identifying the unit measured twice.
+        pair_by: String,
+        /// Column naming the condition of each row.
+        condition: String,
+        /// `[first, second]` condition levels; differences are first − second.
+        levels: [String; 2],
+    },
+    /// One sample against a reference value.
+    Reference {
+        /// The reference value; differences are outcome − reference.
+        reference: f64,
+    },
+}
+
+/// Test methods a plan can name (trade names, kept as they are).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Method {
+    /// Student's t-test with pooled variance.
+    StudentT,
+    /// Welch's t-test.
+    WelchT,
+    /// Mann–Whitney U test.
+    MannWhitney,
+    /// Paired t-test.
+    PairedT,
+    /// Wilcoxon signed-rank test.
+    WilcoxonSignedRank,
+    /// One-sample t-test.
+    OneSampleT,
+    /// The preregistered, assumption-gated choice.
+    Checked,
+}
+
+impl Method {
+    /// Every method, in the order the docs list them.
+    pub const ALL: [Method; 7] = [
+        Method::StudentT,
+        Method::WelchT,
+        Method::MannWhitney,
+        Method::PairedT,
+        Method::WilcoxonSignedRank,
+        Method::OneSampleT,
+        Method::Checked,
+    ];
+
+    /// The name used in analysis files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Method::StudentT => "student-t",
+            Method::WelchT => "welch-t",
+            Method::MannWhitney => "mann-whitney",
+            Method::PairedT => "paired-t",
+            Method::WilcoxonSignedRank => "wilcoxon-signed-rank",
+            Method::OneSampleT => "one-sample-t",
+            Method::Checked => "checked",
+        }
+    }
+
+    /// Whether the method fits the design.
+    pub fn fits(self, design: Design) -> bool {
+        use Method::*;
+        match design {
+            Design::Independent => matches!(self, StudentT | WelchT | MannWhitney | Checked),
+            Design::Paired => matches!(self, PairedT | WilcoxonSignedRank | Checked),
+            Design::OneSample => matches!(self, OneSampleT | WilcoxonSignedRank | Checked),
+        }
+    }
+
+    /// Whether the method is a rank test.
+    pub fn is_rank(self) -> bool {
+        matches!(self, Method::MannWhitney | Method::WilcoxonSignedRank)
+    }
+}
+
+/// One preregistered hypothesis.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Hypothesis {
+    /// Identifier, unique in the file (e.g. "H1").
+    pub id: String,
+    /// The claim in the researcher's words.
+    pub claim: String,
+    /// The design.
+    pub design: Design,
+    /// The numeric outcome column (for paired wide layouts: absent, the two
+    /// columns are in `comparison`).
+    pub outcome: Option<String>,
+    /// Where the two sets of values come from.
+    pub comparison: Comparison,
+    /// Direction of the alternative for first − second.
+    pub alternative: Alternative,
+    /// The preregistered method.
+    pub method: Method,
+    /// Equivalence bounds `[low, high]` in raw units (TOST), if declared.
+    pub equivalence: Option<[f64; 2]>,
+    /// Axis label for figures (the outcome column name when absent).
+    pub label: Option<String>,
+    /// Measurement unit shown with values (e.g. "ml").
+    pub units: Option<String>,
+    /// Whether to add the other methods for this design as robustness checks.
+    pub robustness: bool,
+}
+
+/// A declared deviation from the locked plan (outside the hash).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Deviation {
+    /// When the change was made (free text, ISO date recommended).
+    pub date: String,
+    /// What changed.
+    pub change: String,
+    /// Why.
+    pub reason: String,
+}

@@ -1,0 +1,638 @@
+//! From the file as written to a typed plan: every meaning check that serde
+//! cannot express, each failing with the file, line and column of the value
+//! at fault and a `help:` line saying what would be accepted.
+
+use super::raw::{Num, RawData, RawDeviation, RawExclude, RawFile, RawHypothesis};
+use super::*;
+use crate::error::{line_col, Failure, Result};
+use std::collections::HashSet;
+use std::path::Path;
+use toml::Spanned;
+
+/// Reads, parses and validates an analysis file.
+pub fn load(path: &Path) -> Result<AnalysisFile> {
+    let bytes = std::fs::read(path).map_err(|e| {
+        Failure::io("read the analysis file", path, &e)
+            .help("check the path; analysis files usually live in analyses/")
+    })?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        let (line, col) = line_col(
+            &String::from_utf8_lossy(e.as_bytes()),
+            e.utf8_error().valid_up_to(),
+        );
+        Failure::input("the analysis file is not valid UTF-8 text")
+            .at(path, line, Some(col))
+            .help("save the file as UTF-8")
+    })?;
+    parse(path, &text)
+}
+
+/// Parses and validates analysis-file text; `path` is used in messages.
+pub fn parse(path: &Path, text: &str) -> Result<AnalysisFile> {
+    let text_no_bom = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let raw: RawFile = toml::from_str(text_no_bom).map_err(|e| toml_failure(path, text_no_bom, &e))?;
+    Checker {
+        path,
+        text: text_no_bom,
+    }
+    .file(raw)
+}
+
+/// Turns a TOML or serde error into a positioned failure, adding a
+/// "did you mean" for unknown keys.
+fn toml_failure(path: &Path, text: &str, e: &toml::de::Error) -> Failure {
+    let msg = e.message().trim().to_string();
+    let mut f = Failure::input(first_sentence(&msg));
+    if let Some(span) = e.span() {
+        let (l, c) = line_col(text, span.start);
+        f = f.at(path, l, Some(c));
+    } else {
+        f = f.in_file(path);
+    }
+    if let Some(help) = unknown_key_help(&msg) {
+        f = f.help(help);
+    } else if msg.contains("missing field") {
+        f = f.help("add the key; see the README's analysis-file reference");
+    } else {
+        f = f.help("fix the TOML syntax at that position (strings need quotes, tables need [brackets])");
+    }
+    f
+}
+
+fn first_sentence(msg: &str) -> String {
+    msg.lines().next().unwrap_or(msg).to_string()
+}
+
+/// For serde's "unknown field `x`, expected one of `a`, `b`" message,
+/// suggests the closest known key.
+fn unknown_key_help(msg: &str) -> Option<String> {
+    let rest = msg.strip_prefix("unknown field `")?;
+    let (key, rest) = rest.split_once('`')?;
+    let known: Vec<&str> = rest.split('`').skip(1).step_by(2).collect();
+    let best = known
+        .iter()
+        .map(|k| (edit_distance(key, k), *k))
+        .min()
+        .filter(|(d, k)| *d <= 2.max(k.len() / 3));
+    Some(match best {
+        Some((_, k)) => format!("did you mean `{k}`? Known keys here: {}", known.join(", ")),
+        None => format!("known keys here: {}", known.join(", ")),
+    })
+}
+
+/// Levenshtein distance (common practice, Wagner–Fischer dynamic programme).
+pub fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut prev: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut cur = vec![i + 1; b.len() + 1];
+        for (j, cb) in b.iter().enumerate() {
+            let cost = usize::from(ca != *cb);
+            cur[j + 1] = (prev[j] + cost).min(prev[j + 1] + 1).min(cur[j] + 1);
+        }
+        prev = cur;
+    }
+    prev[b.len()]
+}
+
+struct Checker<'a> {
+    path: &'a Path,
+    text: &'a str,
+}
+
+impl Checker<'_> {
+    fn at<T>(&self, s: &Spanned<T>, what: impl Into<String>) -> Failure {
+        let (l, c) = line_col(self.text, s.span().start);
+        Failure::input(what).at(self.path, l, Some(c))
+    }
+
+    fn top(&self, what: impl Into<String>) -> Failure {
+        Failure::input(what).at(self.path, 1, Some(1))
+    }
+
+    fn file(&self, raw: RawFile) -> Result<AnalysisFile> {
+        let version = raw.attest.as_ref().ok_or_else(|| {
+            self.top("the analysis file has no `attest` format version")
+                .help("add `attest = 1` as the first line")
+        })?;
+        if *version.get_ref() != i64::from(FORMAT_VERSION) {
+            return Err(self
+                .at(version, format!("format version {} is not supported", version.get_ref()))
+                .help(format!("this build of attest reads `attest = {FORMAT_VERSION}`")));
+        }
+        let title = match raw.title {
+            Some(t) if !t.get_ref().trim().is_empty() => t.into_inner(),
+            Some(t) => return Err(self.at(&t, "`title` is empty").help("give the study a title")),
+            None => {
+                return Err(self
+                    .top("the analysis file has no `title`")
+                    .help("add a line such as `title = \"Loaf volume after a long proof\"`"))
+            }
+        };
+        let alpha = self.unit_interval(raw.alpha.as_ref(), "alpha", 0.05)?;
+        let confidence = self.unit_interval(raw.confidence.as_ref(), "confidence", 0.95)?;
+        let check_alpha = self.unit_interval(raw.check_alpha.as_ref(), "check_alpha", 0.05)?;
+        let correction = match &raw.correction {
+            None => Correction::Holm,
+            Some(c) => self.choice(
+                c,
+                "correction",
+                &[
+                    ("none", Correction::None),
+                    ("bonferroni", Correction::Bonferroni),
+                    ("holm", Correction::Holm),
+                    ("hochberg", Correction::Hochberg),
+                    ("fdr-bh", Correction::FdrBh),
+                ],
+            )?,
+        };
+        let seed = match &raw.seed {
+            None => 1,
+            Some(s) if *s.get_ref() >= 0 => *s.get_ref() as u64,
+            Some(s) => {
+                return Err(self
+                    .at(s, "`seed` must be zero or a positive whole number")
+                    .help("write for example `seed = 1`"))
+            }
+        };
+        let data = match raw.data {
+            Some(d) => self.data(d)?,
+            None => {
+                return Err(self
+                    .top("the analysis file has no [data] section")
+                    .help("add `[data]` with `path = \"data/your-file.csv\"`"))
+            }
+        };
+        let exclude = raw
+            .exclude
+            .into_iter()
+            .map(|e| self.exclude(e))
+            .collect::<Result<Vec<_>>>()?;
+        if raw.hypothesis.is_empty() {
+            return Err(self
+                .top("the analysis file declares no hypothesis")
+                .help("add at least one [[hypothesis]] block"));
+        }
+        let mut ids = HashSet::new();
+        let mut hypotheses = Vec::new();
+        for h in raw.hypothesis {
+            let span_holder = h.span();
+            let hyp = self.hypothesis(h)?;
+            if !ids.insert(hyp.id.clone()) {
+                let (l, c) = line_col(self.text, span_holder.start);
+                return Err(Failure::input(format!("hypothesis id `{}` is used twice", hyp.id))
+                    .at(self.path, l, Some(c))
+                    .help("give every hypothesis its own id, e.g. H1, H2"));
+            }
+            hypotheses.push(hyp);
+        }
+        let deviations = raw
+            .deviation
+            .into_iter()
+            .map(|d| self.deviation(d))
+            .collect::<Result<Vec<_>>>()?;
+        Ok(AnalysisFile {
+            path: self.path.to_path_buf(),
+            plan: Plan {
+                attest: FORMAT_VERSION,
+                title,
+                authors: raw.authors.unwrap_or_default(),
+                summary: raw.summary,
+                alpha,
+                confidence,
+                correction,
+                seed,
+                check_alpha,
+                data,
+                exclude,
+                hypotheses,
+            },
+            deviations,
+        })
+    }
+
+    fn unit_interval(&self, v: Option<&Spanned<Num>>, key: &str, default: f64) -> Result<f64> {
+        match v {
+            None => Ok(default),
+            Some(s) => {
+                let x = s.get_ref().0;
+                if x > 0.0 && x < 1.0 {
+                    Ok(x)
+                } else {
+                    Err(self
+                        .at(s, format!("`{key}` must lie strictly between 0 and 1, found {x}"))
+                        .help(format!("write a proportion, e.g. `{key} = {default}`")))
+                }
+            }
+        }
+    }
+
+    fn choice<T: Copy>(&self, s: &Spanned<String>, key: &str, options: &[(&str, T)]) -> Result<T> {
+        let given = s.get_ref().as_str();
+        if let Some((_, v)) = options.iter().find(|(name, _)| *name == given) {
+            return Ok(*v);
+        }
+        let names: Vec<&str> = options.iter().map(|(n, _)| *n).collect();
+        let near = names
+            .iter()
+            .map(|n| (edit_distance(given, n), *n))
+            .min()
+            .filter(|(d, _)| *d <= 3);
+        let help = match near {
+            Some((_, n)) => format!("did you mean \"{n}\"? Choose one of: {}", names.join(", ")),
+            None => format!("choose one of: {}", names.join(", ")),
+        };
+        Err(self
+            .at(s, format!("`{key}` = \"{given}\" is not a known value"))
+            .help(help))
+    }
+
+    fn text_key(&self, v: Option<Spanned<String>>, key: &str, block: &Spanned<impl Sized>) -> Result<String> {
+        match v {
+            Some(s) if !s.get_ref().trim().is_empty() => Ok(s.into_inner()),
+            Some(s) => Err(self.at(&s, format!("`{key}` is empty")).help(format!("give `{key}` a value"))),
+            None => Err(self
+                .at(block, format!("this block has no `{key}`"))
+                .help(format!("add `{key} = \"…\"`"))),
+        }
+    }
+
+    fn data(&self, d: Spanned<RawData>) -> Result<DataSpec> {
+        let span = d.span();
+        let (l, c) = line_col(self.text, span.start);
+        let d = d.into_inner();
+        let path = match d.path {
+            Some(p) if !p.get_ref().trim().is_empty() => p.into_inner(),
+            _ => {
+                return Err(Failure::input("[data] has no `path`")
+                    .at(self.path, l, Some(c))
+                    .help("add `path = \"data/your-file.csv\"` (relative to this analysis file)"))
+            }
+        };
+        let ext = Path::new(&path)
+            .extension()
+            .map(|e| e.to_string_lossy().to_ascii_lowercase())
+            .unwrap_or_default();
+        let format_name = match &d.format {
+            Some(f) => f.get_ref().clone(),
+            None => ext.clone(),
+        };
+        let (format, default_delim) = match format_name.as_str() {
+            "csv" => (DataFormat::Delimited, ','),
+            "tsv" | "tab" => (DataFormat::Delimited, '\t'),
+            "txt" => (DataFormat::Delimited, '\t'),
+            "xlsx" => (DataFormat::Xlsx, ','),
+            other => {
+                let f = Failure::input(if d.format.is_some() {
+                    format!("`format` = \"{other}\" is not a known data format")
+                } else {
+                    format!("cannot tell the data format from the file name `{path}`")
+                });
+                let f = match &d.format {
+                    Some(s) => self.at(s, f.what),
+                    None => f.at(self.path, l, Some(c)),
+                };
+                return Err(f.help("set `format` to one of: csv, tsv, txt, xlsx"));
+            }
+        };
+        let delimiter = match &d.delimiter {
+            None => default_delim,
+            Some(s) => {
+                let v = s.get_ref();
+                let mut chars = v.chars();
+                match (chars.next(), chars.next()) {
+                    (Some(ch), None) if ch != '"' && ch != '\n' && ch != '\r' && ch.is_ascii() => ch,
+                    _ if v == "\\t" => '\t',
+                    _ => {
+                        return Err(self
+                            .at(s, format!("`delimiter` must be one ASCII character, found \"{v}\""))
+                            .help("write for example `delimiter = \";\"` or `delimiter = \"\\t\"`"))
+                    }
+                }
+            }
+        };
+        let decimal = match &d.decimal {
+            None => '.',
+            Some(s) => match s.get_ref().as_str() {
+                "." => '.',
+                "," => ',',
+                other => {
+                    return Err(self
+                        .at(s, format!("`decimal` must be \".\" or \",\", found \"{other}\""))
+                        .help("use `decimal = \",\"` for numbers written like 12,5"))
+                }
+            },
+        };
+        if decimal == delimiter && format == DataFormat::Delimited {
+            return Err(Failure::input("the decimal mark and the delimiter are the same character")
+                .at(self.path, l, Some(c))
+                .help("files with decimal commas usually use `delimiter = \";\"`"));
+        }
+        if format == DataFormat::Delimited {
+            if let Some(s) = &d.sheet {
+                return Err(self
+                    .at(s, "`sheet` only applies to spreadsheet (xlsx) data")
+                    .help("remove `sheet`, or point `path` at an .xlsx file"));
+            }
+        }
+        Ok(DataSpec {
+            path,
+            format,
+            delimiter,
+            decimal,
+            missing: d
+                .missing
+                .unwrap_or_else(|| vec![String::new(), "NA".into(), "N/A".into(), "NaN".into(), ".".into()]),
+            sheet: d.sheet.map(Spanned::into_inner),
+        })
+    }
+
+    fn exclude(&self, e: Spanned<RawExclude>) -> Result<ExcludeRule> {
+        let reason = self.text_key(e.get_ref().reason.clone(), "reason", &e)?;
+        let column = self.text_key(e.get_ref().column.clone(), "column", &e)?;
+        let r = e.get_ref();
+        let kinds = [r.below.is_some() || r.above.is_some(), r.values.is_some(), r.outlier.is_some()]
+            .iter()
+            .filter(|b| **b)
+            .count();
+        if kinds != 1 {
+            return Err(self
+                .at(&e, "an exclusion rule needs exactly one of: `below`/`above`, `values`, `outlier`")
+                .help("split combined rules into separate [[exclude]] blocks"));
+        }
+        let rule = if let Some(o) = &r.outlier {
+            let limit = match &r.limit {
+                Some(l) if l.get_ref().0 > 0.0 && l.get_ref().0.is_finite() => l.get_ref().0,
+                Some(l) => return Err(self.at(l, "`limit` must be a positive number").help("2.5 or 3 are usual for median-distance, 1.5 for tukey-fences")),
+                None => return Err(self.at(o, "an outlier rule needs a `limit`").help("add e.g. `limit = 3` (median-distance) or `limit = 1.5` (tukey-fences)")),
+            };
+            let by = r.by.as_ref().map(|b| b.get_ref().clone());
+            match o.get_ref().as_str() {
+                "median-distance" => ExcludeKind::MedianDistance { limit, by },
+                "tukey-fences" => ExcludeKind::TukeyFences { limit, by },
+                other => {
+                    return Err(self
+                        .at(o, format!("`outlier` = \"{other}\" is not a known rule"))
+                        .help("choose \"median-distance\" (in median absolute deviations) or \"tukey-fences\" (in IQRs)"))
+                }
+            }
+        } else {
+            if let Some(l) = &r.limit {
+                return Err(self.at(l, "`limit` only applies to an outlier rule").help("remove `limit`, or add `outlier = \"median-distance\"`"));
+            }
+            if let Some(b) = &r.by {
+                return Err(self.at(b, "`by` only applies to an outlier rule").help("remove `by`"));
+            }
+            if let Some(v) = &r.values {
+                if v.get_ref().is_empty() {
+                    return Err(self.at(v, "`values` is empty").help("list the cell texts that exclude a row"));
+                }
+                ExcludeKind::Values { values: v.get_ref().clone() }
+            } else {
+                let below = r.below.as_ref().map(|b| b.get_ref().0);
+                let above = r.above.as_ref().map(|b| b.get_ref().0);
+                if let (Some(lo), Some(hi)) = (below, above) {
+                    if lo > hi {
+                        return Err(self.at(&e, format!("`below` ({lo}) is larger than `above` ({hi}), so every row would be excluded")).help("swap the two values"));
+                    }
+                }
+                ExcludeKind::Range { below, above }
+            }
+        };
+        Ok(ExcludeRule { reason, column, rule })
+    }
+
+    fn deviation(&self, d: Spanned<RawDeviation>) -> Result<Deviation> {
+        Ok(Deviation {
+            date: self.text_key(d.get_ref().date.clone(), "date", &d)?,
+            change: self.text_key(d.get_ref().change.clone(), "change", &d)?,
+            reason: self.text_key(d.get_ref().reason.clone(), "reason", &d)?,
+        })
+    }
+
+    fn hypothesis(&self, h: Spanned<RawHypothesis>) -> Result<Hypothesis> {
+        let id = self.text_key(h.get_ref().id.clone(), "id", &h)?;
+        let claim = self.text_key(h.get_ref().claim.clone(), "claim", &h)?;
+        let r = h.get_ref();
+        let design = match &r.design {
+            Some(d) => self.choice(
+                d,
+                "design",
+                &[
+                    ("independent", Design::Independent),
+                    ("paired", Design::Paired),
+                    ("one-sample", Design::OneSample),
+                ],
+            )?,
+            None => {
+                return Err(self
+                    .at(&h, format!("hypothesis {id} has no `design`"))
+                    .help("add `design = \"independent\"`, \"paired\" or \"one-sample\""))
+            }
+        };
+        let method_names: Vec<(&str, Method)> = Method::ALL.iter().map(|m| (m.as_str(), *m)).collect();
+        let method = match &r.method {
+            Some(m) => self.choice(m, "method", &method_names)?,
+            None => {
+                return Err(self
+                    .at(&h, format!("hypothesis {id} has no `method`"))
+                    .help("add e.g. `method = \"welch-t\"`, or `method = \"checked\"` for the assumption-gated choice"))
+            }
+        };
+        if !method.fits(design) {
+            let fitting: Vec<&str> = Method::ALL.iter().filter(|m| m.fits(design)).map(|m| m.as_str()).collect();
+            return Err(self
+                .at(r.method.as_ref().expect("method present"), format!("method \"{}\" does not fit a {} design", method.as_str(), design.as_str()))
+                .help(format!("for this design choose one of: {}", fitting.join(", "))));
+        }
+        let alternative = match &r.alternative {
+            None => Alternative::TwoSided,
+            Some(a) => self.choice(
+                a,
+                "alternative",
+                &[
+                    ("two-sided", Alternative::TwoSided),
+                    ("greater", Alternative::Greater),
+                    ("less", Alternative::Less),
+                ],
+            )?,
+        };
+        let comparison = self.comparison(&id, design, r, &h)?;
+        let outcome = match (&comparison, &r.outcome) {
+            (Comparison::PairedColumns { .. }, Some(o)) => {
+                return Err(self
+                    .at(o, "`outcome` is not used with `first`/`second` columns")
+                    .help("remove `outcome`; the two measurement columns are `first` and `second`"))
+            }
+            (Comparison::PairedColumns { .. }, None) => None,
+            (_, Some(o)) if !o.get_ref().trim().is_empty() => Some(o.get_ref().clone()),
+            (_, _) => {
+                return Err(self
+                    .at(&h, format!("hypothesis {id} has no `outcome`"))
+                    .help("name the numeric column to compare, e.g. `outcome = \"volume_ml\"`"))
+            }
+        };
+        let equivalence = match &r.equivalence {
+            None => None,
+            Some(e) => {
+                let v = e.get_ref();
+                if v.len() != 2 || !(v[0].0 < v[1].0) || !v[0].0.is_finite() || !v[1].0.is_finite() {
+                    return Err(self
+                        .at(e, "`equivalence` must be two numbers [low, high] with low < high")
+                        .help("write the smallest differences that matter, e.g. `equivalence = [-5, 5]` in the outcome's units"));
+                }
+                if method.is_rank() || method == Method::Checked {
+                    return Err(self
+                        .at(e, format!("equivalence bounds need a t method; \"{}\" is not one", method.as_str()))
+                        .help("use welch-t or student-t (independent), paired-t or one-sample-t"));
+                }
+                if alternative != Alternative::TwoSided {
+                    return Err(self
+                        .at(r.alternative.as_ref().expect("alternative present"), "an equivalence hypothesis is tested with two one-sided tests; `alternative` must be \"two-sided\" or absent")
+                        .help("remove `alternative` from this hypothesis"));
+                }
+                Some([v[0].0, v[1].0])
+            }
+        };
+        Ok(Hypothesis {
+            id,
+            claim,
+            design,
+            outcome,
+            comparison,
+            alternative,
+            method,
+            equivalence,
+            label: r.label.clone(),
+            units: r.units.clone(),
+            robustness: r.robustness.unwrap_or(true),
+        })
+    }
+
+    fn comparison(&self, id: &str, design: Design, r: &RawHypothesis, h: &Spanned<RawHypothesis>) -> Result<Comparison> {
+        // Keys that this design does not use are errors, named one by one.
+        let used: &[&str] = match design {
+            Design::Independent => &["group", "levels"],
+            Design::Paired if r.first.is_some() || r.second.is_some() => &["first", "second"],
+            Design::Paired => &["pair_by", "condition", "levels"],
+            Design::OneSample => &["reference"],
+        };
+        let present: [(&str, Option<std::ops::Range<usize>>); 7] = [
+            ("group", r.group.as_ref().map(|s| s.span())),
+            ("levels", r.levels.as_ref().map(|s| s.span())),
+            ("first", r.first.as_ref().map(|s| s.span())),
+            ("second", r.second.as_ref().map(|s| s.span())),
+            ("pair_by", r.pair_by.as_ref().map(|s| s.span())),
+            ("condition", r.condition.as_ref().map(|s| s.span())),
+            ("reference", r.reference.as_ref().map(|s| s.span())),
+        ];
+        for (key, span) in &present {
+            if let Some(span) = span {
+                if !used.contains(key) {
+                    let (l, c) = line_col(self.text, span.start);
+                    return Err(Failure::input(format!("`{key}` is not used by a {} design", design.as_str()))
+                        .at(self.path, l, Some(c))
+                        .help(format!("remove `{key}`; a {} hypothesis uses: {}", design.as_str(), used.join(", "))));
+                }
+            }
+        }
+        let need = |v: &Option<Spanned<String>>, key: &str| -> Result<String> {
+            match v {
+                Some(s) if !s.get_ref().trim().is_empty() => Ok(s.get_ref().clone()),
+                Some(s) => Err(self.at(s, format!("`{key}` is empty")).help(format!("name a column in `{key}`"))),
+                None => Err(self
+                    .at(h, format!("hypothesis {id} ({} design) has no `{key}`", design.as_str()))
+                    .help(format!("add `{key}`; this design uses: {}", used.join(", ")))),
+            }
+        };
+        let levels = || -> Result<[String; 2]> {
+            match &r.levels {
+                Some(l) if l.get_ref().len() == 2 && l.get_ref()[0] != l.get_ref()[1] => {
+                    Ok([l.get_ref()[0].clone(), l.get_ref()[1].clone()])
+                }
+                Some(l) => Err(self
+                    .at(l, "`levels` must name two different values: [first, second]")
+                    .help("effects are computed as first − second, e.g. `levels = [\"long\", \"standard\"]`")),
+                None => Err(self
+                    .at(h, format!("hypothesis {id} has no `levels`"))
+                    .help("add `levels = [\"first\", \"second\"]`; effects are first − second")),
+            }
+        };
+        Ok(match design {
+            Design::Independent => Comparison::Groups {
+                group: need(&r.group, "group")?,
+                levels: levels()?,
+            },
+            Design::Paired if used.contains(&"first") => Comparison::PairedColumns {
+                first: need(&r.first, "first")?,
+                second: need(&r.second, "second")?,
+            },
+            Design::Paired => Comparison::PairedRows {
+                pair_by: need(&r.pair_by, "pair_by")?,
+                condition: need(&r.condition, "condition")?,
+                levels: levels()?,
+            },
+            Design::OneSample => match &r.reference {
+                Some(v) if v.get_ref().0.is_finite() => Comparison::Reference { reference: v.get_ref().0 },
+                Some(v) => return Err(self.at(v, "`reference` must be a finite number").help("write the published value, e.g. `reference = 3.5`")),
+                None => {
+                    return Err(self
+                        .at(h, format!("hypothesis {id} (one-sample design) has no `reference`"))
+                        .help("add the value to compare against, e.g. `reference = 3.5`"))
+                }
+            },
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const GOOD: &str = r#"attest = 1
+title = "Loaf volume"
+[data]
+path = "data/loaves.csv"
+[[hypothesis]]
+id = "H1"
+claim = "Long proofing gives larger loaves."
+design = "independent"
+outcome = "volume_ml"
+group = "proof"
+levels = ["long", "standard"]
+alternative = "greater"
+method = "welch-t"
+"#;
+
+    #[test]
+    fn fills_defaults() {
+        let f = parse(Path::new("a.toml"), GOOD).unwrap();
+        assert_eq!(f.plan.alpha, 0.05);
+        assert_eq!(f.plan.confidence, 0.95);
+        assert_eq!(f.plan.correction, Correction::Holm);
+        assert_eq!(f.plan.data.delimiter, ',');
+        assert_eq!(f.plan.hypotheses[0].alternative, Alternative::Greater);
+    }
+
+    #[test]
+    fn unknown_key_suggests_the_near_one() {
+        let text = GOOD.replace("alternative =", "alternativ =");
+        let e = parse(Path::new("a.toml"), &text).unwrap_err();
+        assert_eq!(e.location.as_ref().unwrap().line, Some(12));
+        assert!(e.help.unwrap().starts_with("did you mean `alternative`?"));
+    }
+
+    #[test]
+    fn design_keys_are_checked() {
+        let text = GOOD.replace("design = \"independent\"", "design = \"paired\"");
+        let e = parse(Path::new("a.toml"), &text).unwrap_err();
+        assert_eq!(e.what, "`group` is not used by a paired design");
+    }
+
+    #[test]
+    fn edit_distance_is_levenshtein() {
+        // Classic example (common practice): kitten → sitting needs 3 edits.
+        assert_eq!(edit_distance("kitten", "sitting"), 3);
+        assert_eq!(edit_distance("", "abc"), 3);
+    }
+}
