@@ -5,6 +5,9 @@
 //! `results` → `render`, driven by `pipeline` and exposed by `cli`.
 #![warn(missing_docs)]
 
+pub mod data;
 pub mod error;
+pub mod lock;
 pub mod plan;
+pub mod results;
 pub mod stats;

@@ -624,7 +624,9 @@ method = "welch-t"
 
     #[test]
     fn design_keys_are_checked() {
-        let text = GOOD.replace("design = \"independent\"", "design = \"paired\"");
+        let text = GOOD
+            .replace("design = \"independent\"", "design = \"paired\"")
+            .replace("welch-t", "paired-t");
         let e = parse(Path::new("a.toml"), &text).unwrap_err();
         assert_eq!(e.what, "`group` is not used by a paired design");
     }

@@ -1,0 +1,392 @@
+//! The results model: one serialisable structure that every output is
+//! rendered from.
+//!
+//! `results.json` is this model serialised; the Markdown and HTML reports,
+//! the figures and the named values are rendered from it and from nothing
+//! else. Figures undefined for the data (an SD of one value, a check the
+//! sample is too small for) are `None`/`null`, never NaN. Numbers are
+//! written at full precision (shortest round-trip); rounding is the
+//! renderers' business.
+
+use crate::plan::canonical::FieldChange;
+use crate::plan::{Deviation, Plan};
+use crate::stats::{Alternative, PMethod};
+use serde::{Deserialize, Serialize};
+
+/// Everything one `attest run` produced.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Results {
+    /// Always `"attest"`.
+    pub tool: String,
+    /// Version of attest that produced the results.
+    pub version: String,
+    /// SHA-256 of the canonical plan that was run.
+    pub plan_sha256: String,
+    /// `as-locked`, `deviates` or `unlocked`.
+    pub lock: LockState,
+    /// What the lock file recorded (absent when unlocked).
+    pub lock_record: Option<LockRecord>,
+    /// Fields that differ from the locked plan (empty when as locked).
+    pub changes: Vec<FieldChange>,
+    /// Deviations the analysis file declares.
+    pub deviations: Vec<Deviation>,
+    /// The plan that was run (canonical, defaults filled).
+    pub plan: Plan,
+    /// The data file and how it was read.
+    pub data: DataRecord,
+    /// Per-hypothesis results, in plan order.
+    pub hypotheses: Vec<HypothesisResult>,
+    /// The command that reproduces these results, with paths relative to
+    /// the analysis file's folder.
+    pub command: String,
+    /// The analysis file's name (relative to its folder).
+    pub analysis_file: String,
+}
+
+/// Relation between the plan that ran and the lock.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum LockState {
+    /// The plan is identical to the locked plan.
+    AsLocked,
+    /// The plan differs from the locked plan; see `changes`.
+    Deviates,
+    /// No lock was used (`--unlocked`): not preregistered.
+    Unlocked,
+}
+
+/// What the lock file says about itself.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct LockRecord {
+    /// SHA-256 of the lock file's bytes.
+    pub sha256: String,
+    /// When the plan was locked (UTC, RFC 3339).
+    pub locked_at: String,
+    /// attest version that wrote the lock.
+    pub locked_with: String,
+    /// Plan hash stored in the lock.
+    pub plan_sha256: String,
+    /// Whether the data file existed when the plan was locked.
+    pub data_existed: bool,
+    /// The data file's SHA-256 at lock time, if it existed.
+    pub data_sha256: Option<String>,
+    /// Whether the lock's own content hash checks out (false: hand-edited).
+    pub intact: bool,
+}
+
+/// The data file as read.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct DataRecord {
+    /// Path relative to the analysis file, as the plan gives it.
+    pub path: String,
+    /// SHA-256 of the file's bytes.
+    pub sha256: String,
+    /// Data rows read (header excluded).
+    pub rows: usize,
+    /// Whether the file lies outside the analysis file's folder tree.
+    pub outside_plan_folder: bool,
+}
+
+/// Rows removed by one exclusion rule, split by the hypothesis' groups.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct RuleStep {
+    /// The rule's reason, as preregistered.
+    pub reason: String,
+    /// Rows removed from the first group (or from all pairs, paired wide).
+    pub first: usize,
+    /// Rows removed from the second group.
+    pub second: usize,
+    /// Rows removed that belong to neither group.
+    pub other: usize,
+}
+
+/// The flow of rows for one hypothesis: read → after each rule → analysed.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct RowFlow {
+    /// Rows read in each group (first, second) before any rule.
+    pub read: [usize; 2],
+    /// Rows read that belong to neither group (other levels of the
+    /// grouping column), ignored and counted.
+    pub other_levels: usize,
+    /// Each exclusion rule, in order.
+    pub rules: Vec<RuleStep>,
+    /// Rows dropped because the outcome (or group, or pair) was missing.
+    pub missing: [usize; 2],
+    /// Units dropped in paired designs because one of the two measurements
+    /// was missing or excluded.
+    pub incomplete_pairs: usize,
+    /// Values analysed in each group (pairs for paired designs: both equal).
+    pub analysed: [usize; 2],
+}
+
+/// Descriptive statistics of one group (or of the differences).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct GroupSummary {
+    /// The group's label (level, column name, or "difference").
+    pub label: String,
+    /// Number of values.
+    pub n: usize,
+    /// Mean.
+    pub mean: f64,
+    /// Standard deviation (n − 1); null when n < 2.
+    pub sd: Option<f64>,
+    /// Standard error of the mean; null when n < 2.
+    pub se: Option<f64>,
+    /// Median.
+    pub median: f64,
+    /// First quartile.
+    pub q1: f64,
+    /// Third quartile.
+    pub q3: f64,
+    /// Minimum.
+    pub min: f64,
+    /// Maximum.
+    pub max: f64,
+    /// Skewness G1; null when undefined.
+    pub skewness: Option<f64>,
+    /// Excess kurtosis G2; null when undefined.
+    pub excess_kurtosis: Option<f64>,
+    /// Two-sided t interval for the mean at the plan's confidence.
+    pub mean_ci: Option<[f64; 2]>,
+}
+
+/// A point estimate with its confidence interval; an open side is null.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Estimate {
+    /// What is estimated, e.g. "mean difference", "Hodges–Lehmann shift".
+    pub name: String,
+    /// The point estimate.
+    pub value: f64,
+    /// Lower bound, null for −∞.
+    pub ci_low: Option<f64>,
+    /// Upper bound, null for +∞.
+    pub ci_high: Option<f64>,
+    /// Confidence level.
+    pub confidence: f64,
+}
+
+/// An effect size with its interval; an open side is null.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct EffectSize {
+    /// Which effect size: "cohen-d", "hedges-g", "d-z", "rank-biserial",
+    /// "probability-of-superiority".
+    pub name: String,
+    /// The value.
+    pub value: f64,
+    /// Lower bound, null for −∞ or not computed.
+    pub ci_low: Option<f64>,
+    /// Upper bound, null for +∞ or not computed.
+    pub ci_high: Option<f64>,
+}
+
+/// The result of one test (the preregistered one or a robustness check).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TestResult {
+    /// Method name as in analysis files (`welch-t`, `mann-whitney`, …).
+    pub method: String,
+    /// Symbol of the statistic: `t`, `U` or `W+`.
+    pub statistic_name: String,
+    /// The statistic (t; U of the first group; W+ = sum of positive ranks).
+    pub statistic: f64,
+    /// Degrees of freedom (null for rank tests).
+    pub df: Option<f64>,
+    /// Standardised statistic of a rank test's normal approximation.
+    pub z: Option<f64>,
+    /// p for the preregistered sidedness.
+    pub p: f64,
+    /// How p was obtained (null for t tests).
+    pub p_method: Option<PMethod>,
+    /// The estimate of the difference with its interval.
+    pub estimate: Estimate,
+    /// Effect sizes: the main one first.
+    pub effects: Vec<EffectSize>,
+    /// Zero differences dropped (Wilcoxon signed-rank).
+    pub zeros_dropped: Option<usize>,
+}
+
+/// One Shapiro–Wilk check.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct NormalityCheck {
+    /// Whose values were checked (a group label, or "differences").
+    pub label: String,
+    /// Sample size.
+    pub n: usize,
+    /// W statistic (null when the check could not run).
+    pub w: Option<f64>,
+    /// p value (null when the check could not run).
+    pub p: Option<f64>,
+    /// Whether normality was rejected at `check_alpha` (null: not run).
+    pub rejected: Option<bool>,
+    /// Why the check could not run, when it could not.
+    pub not_run: Option<String>,
+}
+
+/// One test of equal spread.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SpreadCheck {
+    /// `brown-forsythe` or `levene`.
+    pub method: String,
+    /// F statistic.
+    pub f: Option<f64>,
+    /// Numerator df.
+    pub df1: Option<f64>,
+    /// Denominator df.
+    pub df2: Option<f64>,
+    /// p value.
+    pub p: Option<f64>,
+    /// Whether equal spread was rejected at `check_alpha` (null: not run).
+    pub rejected: Option<bool>,
+    /// Why the check could not run, when it could not.
+    pub not_run: Option<String>,
+}
+
+/// The assumption checks and what the preregistered rule did with them.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Checks {
+    /// Level the checks were judged at.
+    pub check_alpha: f64,
+    /// Shapiro–Wilk on each group (independent) or on the differences.
+    pub normality: Vec<NormalityCheck>,
+    /// Brown–Forsythe (used by the rule) then Levene (reported), independent only.
+    pub spread: Vec<SpreadCheck>,
+    /// Which branch the `checked` rule took (null when the method was fixed).
+    pub branch: Option<Branch>,
+}
+
+/// Branches of the `checked` rule.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Branch {
+    /// Normality held and spread did not differ (or not applicable): t test.
+    NormalEqualSpread,
+    /// Normality held, spread differed: Welch.
+    NormalUnequalSpread,
+    /// Normality was rejected: the rank test.
+    NotNormal,
+    /// A check could not run (too few values); the rule fell back to the
+    /// rank-free choice stated in the docs: Welch (independent) or the t test.
+    CheckNotRun,
+}
+
+/// Two one-sided tests for equivalence.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct EquivalenceResult {
+    /// Lower bound in raw units.
+    pub low: f64,
+    /// Upper bound in raw units.
+    pub high: f64,
+    /// t against the lower bound.
+    pub t_lower: f64,
+    /// t against the upper bound.
+    pub t_upper: f64,
+    /// Degrees of freedom.
+    pub df: f64,
+    /// p of the test against the lower bound.
+    pub p_lower: f64,
+    /// p of the test against the upper bound.
+    pub p_upper: f64,
+    /// The larger of the two: the TOST p value.
+    pub p: f64,
+    /// Lower end of the 1 − 2α interval.
+    pub ci_low: f64,
+    /// Upper end of the 1 − 2α interval.
+    pub ci_high: f64,
+    /// Level of that interval (1 − 2α).
+    pub ci_level: f64,
+}
+
+/// The verdict on a hypothesis.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Decision {
+    /// The null hypothesis is rejected in the preregistered direction.
+    Reject,
+    /// The null hypothesis is retained.
+    Retain,
+}
+
+/// Values kept for drawing figures: all of them up to a cap, otherwise an
+/// evenly spaced sample of the sorted values (so quantiles are kept) plus a
+/// histogram of all values.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PlotData {
+    /// Label of the set (group, condition or "difference").
+    pub label: String,
+    /// The values drawn as points (sorted when sampled).
+    pub points: Vec<f64>,
+    /// Whether `points` is a sample rather than every value.
+    pub sampled: bool,
+    /// Histogram over all values: bin edges (len = counts + 1).
+    pub bin_edges: Vec<f64>,
+    /// Histogram counts.
+    pub bin_counts: Vec<u64>,
+}
+
+/// Pairs for the before/after figure of paired designs (capped like points).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PairedPlot {
+    /// (first, second) for each unit drawn.
+    pub pairs: Vec<[f64; 2]>,
+    /// Whether the pairs are a sample of all units.
+    pub sampled: bool,
+}
+
+/// Everything reported for one hypothesis.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct HypothesisResult {
+    /// Identifier from the plan.
+    pub id: String,
+    /// The claim in the plan's words.
+    pub claim: String,
+    /// `independent`, `paired` or `one-sample`.
+    pub design: String,
+    /// Method named in the plan.
+    pub method_planned: String,
+    /// Method actually run (differs from the plan only for `checked`).
+    pub method: String,
+    /// Preregistered sidedness.
+    pub alternative: Alternative,
+    /// Outcome label for figures and tables.
+    pub outcome_label: String,
+    /// Measurement unit, if the plan gives one.
+    pub units: Option<String>,
+    /// Labels of first and second (for one-sample: outcome and reference).
+    pub labels: [String; 2],
+    /// Reference value (one-sample only).
+    pub reference: Option<f64>,
+    /// Descriptives: the two groups (independent), the two conditions and
+    /// the differences (paired), or the sample (one-sample).
+    pub groups: Vec<GroupSummary>,
+    /// Symbol of the statistic (same as `test.statistic_name`).
+    pub statistic: f64,
+    /// Degrees of freedom of the preregistered test (null for rank tests).
+    pub df: Option<f64>,
+    /// p of the preregistered test for its sidedness.
+    pub p: f64,
+    /// p after the plan's multiplicity correction.
+    pub p_adjusted: f64,
+    /// How p was obtained (null for t tests).
+    pub p_method: Option<PMethod>,
+    /// The estimate with its interval.
+    pub estimate: Estimate,
+    /// The main effect size with its interval.
+    pub effect: EffectSize,
+    /// `reject` or `retain` (at alpha, on `p_adjusted`; on the TOST p for
+    /// equivalence hypotheses).
+    pub decision: Decision,
+    /// The preregistered test in full.
+    pub test: TestResult,
+    /// Assumption checks (always computed where possible; they drive the
+    /// rule only for `checked`).
+    pub checks: Checks,
+    /// The other methods for this design, not preregistered.
+    pub robustness: Vec<TestResult>,
+    /// Equivalence result, when the plan declares bounds.
+    pub equivalence: Option<EquivalenceResult>,
+    /// The flow of rows.
+    pub rows: RowFlow,
+    /// Data behind the figures.
+    pub plot: Vec<PlotData>,
+    /// Unit-level pairs for paired designs.
+    pub paired_plot: Option<PairedPlot>,
+}
