@@ -9,6 +9,14 @@
 pub mod describe;
 pub mod dist;
 pub mod multiplicity;
+pub mod hodges_lehmann;
+pub mod mann_whitney;
+pub mod normality;
+pub mod rank_exact;
+pub mod rank_tests;
+pub mod ranks;
+pub mod spread;
+pub mod wilcoxon;
 
 use serde::{Deserialize, Serialize};
 
@@ -94,6 +102,20 @@ pub enum StatsError {
     /// A parameter (alpha, level, df, …) is outside its valid range.
     #[error("parameter out of range: {0}")]
     BadParameter(&'static str),
+    /// The method is only defined (or only validated) for a range of
+    /// sizes, and the data fall outside it; the caller should report that
+    /// the method does not apply rather than a number.
+    #[error("{what} must be between {min} and {max}, got {got}")]
+    OutOfRange {
+        /// What is out of range, e.g. "Shapiro–Wilk sample size".
+        what: &'static str,
+        /// Smallest valid value.
+        min: usize,
+        /// Largest valid value.
+        max: usize,
+        /// The value given.
+        got: usize,
+    },
 }
 
 /// Checks that every value is finite.
