@@ -8,6 +8,11 @@
 
 pub mod describe;
 pub mod dist;
+pub mod effect;
+pub mod equivalence;
+pub mod multiplicity;
+pub mod nct;
+pub mod ttest;
 
 use serde::{Deserialize, Serialize};
 
