@@ -98,8 +98,8 @@ fn shape(n: f64, m2: f64, m3: f64, m4: f64) -> (Option<f64>, Option<f64>) {
     let g1 = m3n / m2n.powf(1.5);
     let b2 = m4n / (m2n * m2n);
     let skew = (n >= 3.0).then(|| g1 * (n * (n - 1.0)).sqrt() / (n - 2.0));
-    let kurt = (n >= 4.0)
-        .then(|| ((n + 1.0) * (b2 - 3.0) + 6.0) * (n - 1.0) / ((n - 2.0) * (n - 3.0)));
+    let kurt =
+        (n >= 4.0).then(|| ((n + 1.0) * (b2 - 3.0) + 6.0) * (n - 1.0) / ((n - 2.0) * (n - 3.0)));
     (skew, kurt)
 }
 
@@ -171,7 +171,10 @@ mod tests {
             describe(&[]).unwrap_err(),
             StatsError::TooFew { needed: 1, got: 0 }
         );
-        assert_eq!(describe(&[1.0, f64::NAN]).unwrap_err(), StatsError::NonFinite);
+        assert_eq!(
+            describe(&[1.0, f64::NAN]).unwrap_err(),
+            StatsError::NonFinite
+        );
     }
 
     #[test]

@@ -331,11 +331,7 @@ pub fn brent(f: impl Fn(f64) -> f64, a: f64, b: f64, tol: f64) -> Option<f64> {
         }
         a = b;
         fa = fb;
-        b += if d.abs() > tol1 {
-            d
-        } else {
-            tol1.copysign(xm)
-        };
+        b += if d.abs() > tol1 { d } else { tol1.copysign(xm) };
         fb = f(b);
         if fb.is_nan() {
             return None;
@@ -362,7 +358,17 @@ mod tests {
 
     #[test]
     fn normal_quantile_round_trips() {
-        for &p in &[1e-300, 1e-20, 1e-5, 0.025, 0.3, 0.5, 0.7, 0.975, 1.0 - 1e-12] {
+        for &p in &[
+            1e-300,
+            1e-20,
+            1e-5,
+            0.025,
+            0.3,
+            0.5,
+            0.7,
+            0.975,
+            1.0 - 1e-12,
+        ] {
             let z = normal_quantile(p);
             let back = if p < 0.5 {
                 normal_cdf(z)

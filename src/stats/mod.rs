@@ -8,14 +8,18 @@
 
 pub mod describe;
 pub mod dist;
-pub mod multiplicity;
+pub mod effect;
+pub mod equivalence;
 pub mod hodges_lehmann;
 pub mod mann_whitney;
+pub mod multiplicity;
+pub mod nct;
 pub mod normality;
 pub mod rank_exact;
 pub mod rank_tests;
 pub mod ranks;
 pub mod spread;
+pub mod ttest;
 pub mod wilcoxon;
 
 use serde::{Deserialize, Serialize};
