@@ -5,9 +5,13 @@
 //! `results` → `render`, driven by `pipeline` and exposed by `cli`.
 #![warn(missing_docs)]
 
+pub mod analysis;
 pub mod data;
 pub mod error;
 pub mod lock;
+pub mod output;
 pub mod plan;
 pub mod results;
 pub mod stats;
+pub mod values;
+pub mod witness;

@@ -72,6 +72,9 @@ pub struct LockRecord {
     pub data_sha256: Option<String>,
     /// Whether the lock's own content hash checks out (false: hand-edited).
     pub intact: bool,
+    /// What version control says: the first commit holding the lock, or
+    /// that it is not committed, or that there is no git here.
+    pub witness: crate::witness::Witness,
 }
 
 /// The data file as read.

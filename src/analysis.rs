@@ -1,0 +1,435 @@
+//! One hypothesis, analysed: the assumption checks, the preregistered test
+//! (or the branch the `checked` rule takes), effect sizes, equivalence,
+//! robustness checks and figure data, gathered into the results model.
+//!
+//! This is where the plan's words meet the statistics engine; it computes
+//! nothing itself beyond choosing and collecting, and formats no text
+//! except the fixed method and effect names the results model records.
+
+use crate::data::Selected;
+use crate::error::{Failure, Result};
+use crate::plan::{Comparison, Design, Hypothesis, Method, Plan};
+use crate::results::*;
+use crate::stats::{self, describe, Alternative, Interval, StatsError};
+
+/// Figures draw at most this many points per set; larger sets are drawn
+/// from evenly spaced order statistics (so the quantiles stay exact).
+pub const PLOT_POINTS: usize = 2000;
+/// Before/after figures draw at most this many units.
+pub const PLOT_PAIRS: usize = 400;
+/// Histogram bins over all values.
+pub const PLOT_BINS: usize = 40;
+
+/// Analyses one hypothesis on its selected values. `p_adjusted` and
+/// `decision` are provisional here; the caller applies the plan's
+/// multiplicity correction across hypotheses.
+pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisResult> {
+    let level = plan.confidence;
+    let fail = |what: &str, e: StatsError| -> Failure {
+        Failure::input(format!("hypothesis {}: {what}: {e}", h.id)).help(
+            "check the row counts in the data (missing values and exclusions reduce them), or revise the plan and record a deviation",
+        )
+    };
+    let labels = labels(h);
+    let Selected { first, second, flow } = sel;
+    // The values the one-sample machinery works on: differences (paired) or
+    // the sample itself (one-sample, tested against `reference`).
+    let (diffs, reference) = match &h.comparison {
+        Comparison::PairedColumns { .. } | Comparison::PairedRows { .. } => {
+            (first.iter().zip(&second).map(|(a, b)| a - b).collect::<Vec<_>>(), 0.0)
+        }
+        Comparison::Reference { reference } => (first.clone(), *reference),
+        Comparison::Groups { .. } => (Vec::new(), 0.0),
+    };
+    let groups = summaries(h, &labels, &first, &second, &diffs, level).map_err(|e| fail("cannot describe the data", e))?;
+    let checks = checks(plan, h, &labels, &first, &second, &diffs);
+    let method = choose(h.method, h.design, &checks);
+    let mut checks = checks;
+    if h.method == Method::Checked {
+        checks.branch = Some(branch(h.design, &checks));
+    }
+    let run = |m: Method| run_method(m, h.alternative, level, &first, &second, &diffs, reference);
+    let test = run(method).map_err(|e| fail(&format!("{} cannot be computed", method.as_str()), e))?;
+    let robustness = if h.robustness {
+        Method::ALL
+            .iter()
+            .filter(|m| **m != method && **m != Method::Checked && m.fits(h.design))
+            .filter_map(|m| run(*m).ok())
+            .collect()
+    } else {
+        Vec::new()
+    };
+    let equivalence = match h.equivalence {
+        None => None,
+        Some([low, high]) => Some(equivalence(method, plan.alpha, low, high, &first, &second, &diffs, reference).map_err(|e| fail("the equivalence test cannot be computed", e))?),
+    };
+    let p = equivalence.as_ref().map_or(test.p, |e| e.p);
+    let (plot, paired_plot) = plot_data(h, &labels, &first, &second, &diffs);
+    Ok(HypothesisResult {
+        id: h.id.clone(),
+        claim: h.claim.clone(),
+        design: h.design.as_str().into(),
+        method_planned: h.method.as_str().into(),
+        method: method.as_str().into(),
+        alternative: h.alternative,
+        outcome_label: h.label.clone().unwrap_or_else(|| outcome_name(h)),
+        units: h.units.clone(),
+        labels,
+        reference: match h.comparison {
+            Comparison::Reference { reference } => Some(reference),
+            _ => None,
+        },
+        groups,
+        statistic: test.statistic,
+        df: test.df,
+        p,
+        p_adjusted: p,
+        p_method: test.p_method,
+        estimate: test.estimate.clone(),
+        effect: test.effects[0].clone(),
+        decision: if p < plan.alpha { Decision::Reject } else { Decision::Retain },
+        test,
+        checks,
+        robustness,
+        equivalence,
+        rows: flow,
+        plot,
+        paired_plot,
+    })
+}
+
+/// Applies the plan's multiplicity correction and the decisions.
+pub fn adjust_all(plan: &Plan, results: &mut [HypothesisResult]) {
+    let ps: Vec<f64> = results.iter().map(|r| r.p).collect();
+    let adj = stats::multiplicity::adjust(&ps, plan.correction);
+    for (r, a) in results.iter_mut().zip(adj) {
+        r.p_adjusted = a;
+        r.decision = if a < plan.alpha { Decision::Reject } else { Decision::Retain };
+    }
+}
+
+fn outcome_name(h: &Hypothesis) -> String {
+    match (&h.outcome, &h.comparison) {
+        (Some(o), _) => o.clone(),
+        (None, Comparison::PairedColumns { first, second }) => format!("{first} − {second}"),
+        (None, _) => String::new(),
+    }
+}
+
+fn labels(h: &Hypothesis) -> [String; 2] {
+    match &h.comparison {
+        Comparison::Groups { levels, .. } | Comparison::PairedRows { levels, .. } => levels.clone(),
+        Comparison::PairedColumns { first, second } => [first.clone(), second.clone()],
+        Comparison::Reference { reference } => [outcome_name(h), format!("reference {reference}")],
+    }
+}
+
+fn summary(label: &str, x: &[f64], level: f64) -> std::result::Result<GroupSummary, StatsError> {
+    let d = describe::describe(x)?;
+    let mean_ci = d.se.filter(|se| *se > 0.0).map(|se| {
+        let q = stats::dist::t_quantile(0.5 + level / 2.0, (d.n - 1) as f64);
+        [d.mean - q * se, d.mean + q * se]
+    });
+    Ok(GroupSummary {
+        label: label.to_string(),
+        n: d.n,
+        mean: d.mean,
+        sd: d.sd,
+        se: d.se,
+        median: d.median,
+        q1: d.q1,
+        q3: d.q3,
+        min: d.min,
+        max: d.max,
+        skewness: d.skewness,
+        excess_kurtosis: d.excess_kurtosis,
+        mean_ci,
+    })
+}
+
+fn summaries(h: &Hypothesis, labels: &[String; 2], first: &[f64], second: &[f64], diffs: &[f64], level: f64) -> std::result::Result<Vec<GroupSummary>, StatsError> {
+    Ok(match h.design {
+        Design::Independent => vec![summary(&labels[0], first, level)?, summary(&labels[1], second, level)?],
+        Design::Paired => vec![
+            summary(&labels[0], first, level)?,
+            summary(&labels[1], second, level)?,
+            summary("difference", diffs, level)?,
+        ],
+        Design::OneSample => vec![summary(&labels[0], first, level)?],
+    })
+}
+
+fn normality(label: &str, x: &[f64], check_alpha: f64) -> NormalityCheck {
+    match stats::normality::shapiro_wilk(x) {
+        Ok(sw) => NormalityCheck {
+            label: label.into(),
+            n: x.len(),
+            w: Some(sw.w),
+            p: Some(sw.p),
+            rejected: Some(sw.p < check_alpha),
+            not_run: None,
+        },
+        Err(e) => NormalityCheck {
+            label: label.into(),
+            n: x.len(),
+            w: None,
+            p: None,
+            rejected: None,
+            not_run: Some(e.to_string()),
+        },
+    }
+}
+
+fn spread(method: &str, r: std::result::Result<stats::spread::SpreadTest, StatsError>, check_alpha: f64) -> SpreadCheck {
+    match r {
+        Ok(s) => SpreadCheck {
+            method: method.into(),
+            f: Some(s.f),
+            df1: Some(s.df1),
+            df2: Some(s.df2),
+            p: Some(s.p),
+            rejected: Some(s.p < check_alpha),
+            not_run: None,
+        },
+        Err(e) => SpreadCheck {
+            method: method.into(),
+            f: None,
+            df1: None,
+            df2: None,
+            p: None,
+            rejected: None,
+            not_run: Some(e.to_string()),
+        },
+    }
+}
+
+fn checks(plan: &Plan, h: &Hypothesis, labels: &[String; 2], first: &[f64], second: &[f64], diffs: &[f64]) -> Checks {
+    let a = plan.check_alpha;
+    let (normality, spread) = match h.design {
+        Design::Independent => (
+            vec![normality(&labels[0], first, a), normality(&labels[1], second, a)],
+            vec![
+                spread("brown-forsythe", stats::spread::brown_forsythe(first, second), a),
+                spread("levene", stats::spread::levene(first, second), a),
+            ],
+        ),
+        Design::Paired | Design::OneSample => {
+            let label = if h.design == Design::Paired { "differences" } else { labels[0].as_str() };
+            (vec![normality(label, diffs, a)], Vec::new())
+        }
+    };
+    Checks {
+        check_alpha: a,
+        normality,
+        spread,
+        branch: None,
+    }
+}
+
+/// The branch of the `checked` rule the checks lead to.
+fn branch(design: Design, c: &Checks) -> Branch {
+    if c.normality.iter().any(|n| n.rejected == Some(true)) {
+        return Branch::NotNormal;
+    }
+    if c.normality.iter().any(|n| n.rejected.is_none()) {
+        return Branch::CheckNotRun;
+    }
+    if design == Design::Independent {
+        match c.spread.first().and_then(|s| s.rejected) {
+            Some(true) => Branch::NormalUnequalSpread,
+            Some(false) => Branch::NormalEqualSpread,
+            None => Branch::CheckNotRun,
+        }
+    } else {
+        Branch::NormalEqualSpread
+    }
+}
+
+/// The method actually run: the plan's, or the `checked` rule's choice.
+fn choose(planned: Method, design: Design, c: &Checks) -> Method {
+    if planned != Method::Checked {
+        return planned;
+    }
+    match (branch(design, c), design) {
+        (Branch::NotNormal, Design::Independent) => Method::MannWhitney,
+        (Branch::NotNormal, _) => Method::WilcoxonSignedRank,
+        (Branch::NormalEqualSpread, Design::Independent) => Method::StudentT,
+        (_, Design::Independent) => Method::WelchT,
+        (_, Design::Paired) => Method::PairedT,
+        (_, Design::OneSample) => Method::OneSampleT,
+    }
+}
+
+fn interval_bounds(i: &Interval) -> (Option<f64>, Option<f64>) {
+    (i.low, i.high)
+}
+
+fn effect(name: &str, e: &stats::effect::Effect) -> EffectSize {
+    let (lo, hi) = interval_bounds(&e.interval);
+    EffectSize {
+        name: name.into(),
+        value: e.value,
+        ci_low: lo,
+        ci_high: hi,
+    }
+}
+
+fn run_method(m: Method, alt: Alternative, level: f64, first: &[f64], second: &[f64], diffs: &[f64], reference: f64) -> std::result::Result<TestResult, StatsError> {
+    use stats::{effect as fx, mann_whitney::mann_whitney, rank_tests as rk, ttest as tt, wilcoxon::wilcoxon_signed_rank};
+    let t_result = |name: Method, t: tt::TTest, effects: Vec<EffectSize>| TestResult {
+        method: name.as_str().into(),
+        statistic_name: "t".into(),
+        statistic: t.t,
+        df: Some(t.df),
+        z: None,
+        p: t.p,
+        p_method: None,
+        estimate: Estimate {
+            name: "mean difference".into(),
+            value: t.estimate,
+            ci_low: t.interval.low,
+            ci_high: t.interval.high,
+            confidence: level,
+        },
+        effects,
+        zeros_dropped: None,
+    };
+    let rank_result = |name: Method, r: rk::RankTest, stat: &str, est: &str| {
+        let mut effects = vec![EffectSize {
+            name: "rank-biserial".into(),
+            value: r.rank_biserial,
+            ci_low: r.rank_biserial_interval.low,
+            ci_high: r.rank_biserial_interval.high,
+        }];
+        if let Some(ps) = r.prob_superiority {
+            effects.push(EffectSize {
+                name: "probability-of-superiority".into(),
+                value: ps,
+                ci_low: None,
+                ci_high: None,
+            });
+        }
+        TestResult {
+            method: name.as_str().into(),
+            statistic_name: stat.into(),
+            statistic: r.statistic,
+            df: None,
+            z: r.z,
+            p: r.p,
+            p_method: Some(r.p_method),
+            estimate: Estimate {
+                name: est.into(),
+                value: r.estimate,
+                ci_low: r.interval.low,
+                ci_high: r.interval.high,
+                confidence: level,
+            },
+            effects,
+            zeros_dropped: (name == Method::WilcoxonSignedRank).then_some(r.zeros_dropped),
+        }
+    };
+    Ok(match m {
+        Method::StudentT | Method::WelchT => {
+            let t = if m == Method::StudentT { tt::student_t(first, second, alt, level)? } else { tt::welch_t(first, second, alt, level)? };
+            let d = fx::cohens_d(first, second, alt, level)?;
+            let g = fx::hedges_g(first, second, alt, level)?;
+            t_result(m, t, vec![effect("cohen-d", &d), effect("hedges-g", &g)])
+        }
+        Method::PairedT | Method::OneSampleT => {
+            let t = tt::one_sample_t(diffs, reference, alt, level)?;
+            let dz = fx::d_z(diffs, reference, alt, level)?;
+            t_result(m, t, vec![effect("d-z", &dz)])
+        }
+        Method::MannWhitney => rank_result(m, mann_whitney(first, second, alt, level)?, "U", "Hodges–Lehmann shift"),
+        Method::WilcoxonSignedRank => {
+            let shifted: Vec<f64> = diffs.iter().map(|d| d - reference).collect();
+            let mut r = wilcoxon_signed_rank(&shifted, alt, level)?;
+            r.estimate += reference;
+            r.interval.low = r.interval.low.map(|v| v + reference);
+            r.interval.high = r.interval.high.map(|v| v + reference);
+            rank_result(m, r, "W+", "Hodges–Lehmann estimate")
+        }
+        Method::Checked => return Err(StatsError::BadParameter("`checked` is resolved before a test runs")),
+    })
+}
+
+#[allow(clippy::too_many_arguments)]
+fn equivalence(method: Method, alpha: f64, low: f64, high: f64, first: &[f64], second: &[f64], diffs: &[f64], reference: f64) -> std::result::Result<EquivalenceResult, StatsError> {
+    use stats::equivalence as eq;
+    let t = match method {
+        Method::StudentT | Method::WelchT => eq::tost_two_sample(first, second, low, high, alpha, method == Method::WelchT)?,
+        _ => eq::tost_one_sample(diffs, reference, low, high, alpha)?,
+    };
+    Ok(EquivalenceResult {
+        low,
+        high,
+        t_lower: t.t_lower,
+        t_upper: t.t_upper,
+        df: t.df,
+        p_lower: t.p_lower,
+        p_upper: t.p_upper,
+        p: t.p,
+        ci_low: t.interval.low.unwrap_or(f64::NEG_INFINITY),
+        ci_high: t.interval.high.unwrap_or(f64::INFINITY),
+        ci_level: 1.0 - 2.0 * alpha,
+    })
+}
+
+/// Figure data: every value up to [`PLOT_POINTS`], otherwise evenly spaced
+/// order statistics; a histogram over all values either way.
+pub fn plot_set(label: &str, x: &[f64]) -> PlotData {
+    let mut sorted = x.to_vec();
+    sorted.sort_unstable_by(f64::total_cmp);
+    let n = sorted.len();
+    let (points, sampled) = if n <= PLOT_POINTS {
+        (x.to_vec(), false)
+    } else {
+        let step = (n - 1) as f64 / (PLOT_POINTS - 1) as f64;
+        ((0..PLOT_POINTS).map(|i| sorted[((i as f64) * step).round() as usize]).collect(), true)
+    };
+    let (bin_edges, bin_counts) = histogram(&sorted, PLOT_BINS);
+    PlotData {
+        label: label.into(),
+        points,
+        sampled,
+        bin_edges,
+        bin_counts,
+    }
+}
+
+fn histogram(sorted: &[f64], bins: usize) -> (Vec<f64>, Vec<u64>) {
+    let (Some(&lo), Some(&hi)) = (sorted.first(), sorted.last()) else {
+        return (Vec::new(), Vec::new());
+    };
+    if hi <= lo {
+        return (vec![lo, hi], vec![sorted.len() as u64]);
+    }
+    let width = (hi - lo) / bins as f64;
+    let edges: Vec<f64> = (0..=bins).map(|i| if i == bins { hi } else { lo + width * i as f64 }).collect();
+    let mut counts = vec![0u64; bins];
+    for &v in sorted {
+        let k = (((v - lo) / width) as usize).min(bins - 1);
+        counts[k] += 1;
+    }
+    (edges, counts)
+}
+
+fn plot_data(h: &Hypothesis, labels: &[String; 2], first: &[f64], second: &[f64], diffs: &[f64]) -> (Vec<PlotData>, Option<PairedPlot>) {
+    match h.design {
+        Design::Independent => (vec![plot_set(&labels[0], first), plot_set(&labels[1], second)], None),
+        Design::OneSample => (vec![plot_set(&labels[0], first)], None),
+        Design::Paired => {
+            let n = first.len();
+            let (pairs, sampled) = if n <= PLOT_PAIRS {
+                (first.iter().zip(second).map(|(a, b)| [*a, *b]).collect(), false)
+            } else {
+                let step = n as f64 / PLOT_PAIRS as f64;
+                ((0..PLOT_PAIRS).map(|i| {
+                    let k = ((i as f64) * step) as usize;
+                    [first[k], second[k]]
+                }).collect(), true)
+            };
+            (vec![plot_set("difference", diffs)], Some(PairedPlot { pairs, sampled }))
+        }
+    }
+}

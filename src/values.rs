@@ -1,0 +1,168 @@
+//! Named values for documents: every reported figure of every hypothesis
+//! under a stable name, written as LaTeX macros (`values.tex`) and as JSON
+//! (`values.json`), so a thesis chapter quotes results that regenerate with
+//! the data.
+//!
+//! Naming scheme (documented in docs/values.md): the analysis file's stem,
+//! the hypothesis id and the figure, each turned into letters only — digits
+//! become their English words, every other character is dropped, and each
+//! word starts with a capital: `loaves.toml`, `H1`, `t` → `\LoavesHOneT`.
+//! Names depend only on the plan, never on the data; two figures that map
+//! to the same name are an error, not a silent overwrite.
+//!
+//! Values are formatted once, by the report's APA rules, as Markdown inline
+//! text (`*t*(97.31) = 2.71`); LaTeX is derived from that text by turning
+//! emphasis into `\textit{}` and escaping everything else.
+
+use crate::error::{Failure, Result};
+use pulldown_cmark::{Event, Parser, Tag, TagEnd};
+use std::collections::BTreeMap;
+
+const DIGITS: [&str; 10] = ["Zero", "One", "Two", "Three", "Four", "Five", "Six", "Seven", "Eight", "Nine"];
+
+/// Turns any text into a run of ASCII letters: digits become words, other
+/// characters separate words and are dropped, each word is capitalised.
+pub fn letters(text: &str) -> String {
+    let mut out = String::new();
+    let mut new_word = true;
+    for ch in text.chars() {
+        if ch.is_ascii_alphabetic() {
+            if new_word {
+                out.push(ch.to_ascii_uppercase());
+            } else {
+                out.push(ch);
+            }
+            new_word = false;
+        } else if let Some(d) = ch.to_digit(10) {
+            out.push_str(DIGITS[d as usize]);
+            new_word = true;
+        } else {
+            new_word = true;
+        }
+    }
+    out
+}
+
+/// The macro name for one figure.
+pub fn name(analysis: &str, id: &str, figure: &str) -> String {
+    format!("{}{}{}", letters(analysis), letters(id), letters(figure))
+}
+
+/// A set of named values that refuses collisions.
+#[derive(Default)]
+pub struct Values {
+    map: BTreeMap<String, (String, String)>,
+}
+
+impl Values {
+    /// Adds a value under `name`; `origin` says where it came from, for
+    /// the collision message.
+    pub fn add(&mut self, name: String, origin: String, markdown: String) -> Result<()> {
+        if name.is_empty() || !name.chars().all(|c| c.is_ascii_alphabetic()) {
+            return Err(Failure::input(format!("{origin} gives the value name \"{name}\", which has no letters to use"))
+                .help("give the analysis file and the hypothesis ids names with letters, e.g. H1"));
+        }
+        if let Some((other, _)) = self.map.get(&name) {
+            return Err(Failure::input(format!("two values would be named \\{name}: {other} and {origin}"))
+                .help("rename one of the hypothesis ids (or group levels) so their letters differ; digits count as words, punctuation is dropped"));
+        }
+        self.map.insert(name, (origin, markdown));
+        Ok(())
+    }
+
+    /// Names and Markdown values, sorted by name.
+    pub fn iter(&self) -> impl Iterator<Item = (&str, &str)> {
+        self.map.iter().map(|(k, (_, v))| (k.as_str(), v.as_str()))
+    }
+
+    /// `values.tex`: one `\newcommand` per value.
+    pub fn to_tex(&self, title: &str) -> String {
+        let mut s = String::from("% Named values written by attest; regenerate with `attest run`, do not edit.\n");
+        s.push_str(&format!("% Analysis: {}\n", title.replace(['\n', '\r'], " ")));
+        for (k, v) in self.iter() {
+            s.push_str(&format!("\\newcommand{{\\{k}}}{{{}}}\n", markdown_to_latex(v)));
+        }
+        s
+    }
+
+    /// `values.json`: names mapped to the Markdown strings.
+    pub fn to_json(&self) -> String {
+        let m: BTreeMap<&str, &str> = self.iter().collect();
+        let mut s = serde_json::to_string_pretty(&m).expect("strings always serialise");
+        s.push('\n');
+        s
+    }
+}
+
+/// Escapes text for LaTeX's text mode.
+pub fn latex_escape(text: &str) -> String {
+    let mut s = String::with_capacity(text.len());
+    for ch in text.chars() {
+        match ch {
+            '\\' => s.push_str("\\textbackslash{}"),
+            '{' | '}' | '$' | '&' | '#' | '_' | '%' => {
+                s.push('\\');
+                s.push(ch);
+            }
+            '~' => s.push_str("\\textasciitilde{}"),
+            '^' => s.push_str("\\textasciicircum{}"),
+            '−' => s.push_str("\\ensuremath{-}"),
+            '∞' => s.push_str("\\ensuremath{\\infty}"),
+            '≥' => s.push_str("\\ensuremath{\\geq}"),
+            '≤' => s.push_str("\\ensuremath{\\leq}"),
+            '–' => s.push_str("--"),
+            '—' => s.push_str("---"),
+            '×' => s.push_str("\\ensuremath{\\times}"),
+            '±' => s.push_str("\\ensuremath{\\pm}"),
+            'α' => s.push_str("\\ensuremath{\\alpha}"),
+            'μ' => s.push_str("\\ensuremath{\\mu}"),
+            '\u{a0}' => s.push('~'),
+            _ => s.push(ch),
+        }
+    }
+    s
+}
+
+/// Converts Markdown inline text (emphasis and plain text) to LaTeX.
+pub fn markdown_to_latex(md: &str) -> String {
+    let mut s = String::new();
+    for ev in Parser::new(md) {
+        match ev {
+            Event::Start(Tag::Emphasis) => s.push_str("\\textit{"),
+            Event::Start(Tag::Strong) => s.push_str("\\textbf{"),
+            Event::End(TagEnd::Emphasis) | Event::End(TagEnd::Strong) => s.push('}'),
+            Event::Text(t) | Event::Code(t) => s.push_str(&latex_escape(&t)),
+            Event::SoftBreak | Event::HardBreak => s.push(' '),
+            Event::Html(t) | Event::InlineHtml(t) => s.push_str(&latex_escape(&t)),
+            _ => {}
+        }
+    }
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn names_are_letters_only() {
+        assert_eq!(name("loaves", "H1", "t"), "LoavesHOneT");
+        assert_eq!(name("tutoring-2026", "H10", "p"), "TutoringTwoZeroTwoSixHOneZeroP");
+        assert_eq!(name("my_study", "h-1", "mean long"), "MyStudyHOneMeanLong");
+    }
+
+    #[test]
+    fn collisions_are_errors() {
+        let mut v = Values::default();
+        v.add(name("a", "H1", "t"), "H1 t".into(), "x".into()).unwrap();
+        let e = v.add(name("a", "H-1", "t"), "H-1 t".into(), "y".into()).unwrap_err();
+        assert_eq!(e.what, "two values would be named \\AHOneT: H1 t and H-1 t");
+    }
+
+    #[test]
+    fn markdown_becomes_latex() {
+        // LaTeX's ten special characters (common practice: The TeXbook, ch. 7).
+        assert_eq!(latex_escape("50% & $5 #1 a_b {x} ~ ^"), "50\\% \\& \\$5 \\#1 a\\_b \\{x\\} \\textasciitilde{} \\textasciicircum{}");
+        assert_eq!(markdown_to_latex("*t*(97.31) = −2.71"), "\\textit{t}(97.31) = \\ensuremath{-}2.71");
+    }
+}
