@@ -9,5 +9,6 @@ pub mod data;
 pub mod error;
 pub mod lock;
 pub mod plan;
+pub mod render;
 pub mod results;
 pub mod stats;
