@@ -8,7 +8,7 @@
 //! by attest's statistics code; renderers only format them.
 
 use attest::plan::{
-    Comparison, DataFormat, DataSpec, Deviation, Design, ExcludeKind, ExcludeRule, Hypothesis,
+    Comparison, DataFormat, DataSpec, Design, Deviation, ExcludeKind, ExcludeRule, Hypothesis,
     Method, Plan,
 };
 use attest::render::{render_plan, render_report};
@@ -113,7 +113,12 @@ fn h1() -> HypothesisResult {
         ci_high: None,
         confidence: 0.95,
     };
-    let effect = EffectSize { name: "cohen-d".into(), value: 0.58, ci_low: Some(0.18), ci_high: None };
+    let effect = EffectSize {
+        name: "cohen-d".into(),
+        value: 0.58,
+        ci_low: Some(0.18),
+        ci_high: None,
+    };
     let test = TestResult {
         method: "welch-t".into(),
         statistic_name: "t".into(),
@@ -123,7 +128,15 @@ fn h1() -> HypothesisResult {
         p: 0.0103,
         p_method: None,
         estimate: estimate.clone(),
-        effects: vec![effect.clone(), EffectSize { name: "hedges-g".into(), value: 0.57, ci_low: Some(0.17), ci_high: None }],
+        effects: vec![
+            effect.clone(),
+            EffectSize {
+                name: "hedges-g".into(),
+                value: 0.57,
+                ci_low: Some(0.17),
+                ci_high: None,
+            },
+        ],
         zeros_dropped: None,
     };
     HypothesisResult {
@@ -153,12 +166,42 @@ fn h1() -> HypothesisResult {
         checks: Checks {
             check_alpha: 0.05,
             normality: vec![
-                NormalityCheck { label: "drip".into(), n: 24, w: Some(0.967), p: Some(0.584), rejected: Some(false), not_run: None },
-                NormalityCheck { label: "hand".into(), n: 23, w: Some(0.951), p: Some(0.307), rejected: Some(false), not_run: None },
+                NormalityCheck {
+                    label: "drip".into(),
+                    n: 24,
+                    w: Some(0.967),
+                    p: Some(0.584),
+                    rejected: Some(false),
+                    not_run: None,
+                },
+                NormalityCheck {
+                    label: "hand".into(),
+                    n: 23,
+                    w: Some(0.951),
+                    p: Some(0.307),
+                    rejected: Some(false),
+                    not_run: None,
+                },
             ],
             spread: vec![
-                SpreadCheck { method: "brown-forsythe".into(), f: Some(4.62), df1: Some(1.0), df2: Some(45.0), p: Some(0.037), rejected: Some(true), not_run: None },
-                SpreadCheck { method: "levene".into(), f: Some(5.08), df1: Some(1.0), df2: Some(45.0), p: Some(0.029), rejected: Some(true), not_run: None },
+                SpreadCheck {
+                    method: "brown-forsythe".into(),
+                    f: Some(4.62),
+                    df1: Some(1.0),
+                    df2: Some(45.0),
+                    p: Some(0.037),
+                    rejected: Some(true),
+                    not_run: None,
+                },
+                SpreadCheck {
+                    method: "levene".into(),
+                    f: Some(5.08),
+                    df1: Some(1.0),
+                    df2: Some(45.0),
+                    p: Some(0.029),
+                    rejected: Some(true),
+                    not_run: None,
+                },
             ],
             branch: Some(Branch::NormalUnequalSpread),
         },
@@ -170,21 +213,40 @@ fn h1() -> HypothesisResult {
             z: Some(2.08),
             p: 0.0188,
             p_method: Some(PMethod::NormalApproximation),
-            estimate: Estimate { name: "Hodges–Lehmann shift".into(), value: 0.6, ci_low: Some(0.1), ci_high: None, confidence: 0.95 },
-            effects: vec![EffectSize { name: "rank-biserial".into(), value: 0.35, ci_low: Some(0.06), ci_high: None }],
+            estimate: Estimate {
+                name: "Hodges–Lehmann shift".into(),
+                value: 0.6,
+                ci_low: Some(0.1),
+                ci_high: None,
+                confidence: 0.95,
+            },
+            effects: vec![EffectSize {
+                name: "rank-biserial".into(),
+                value: 0.35,
+                ci_low: Some(0.06),
+                ci_high: None,
+            }],
             zeros_dropped: None,
         }],
         equivalence: None,
         rows: RowFlow {
             read: [26, 24],
             other_levels: 2,
-            rules: vec![RuleStep { reason: "plants lost to blight before fruiting".into(), first: 2, second: 0, other: 0 }],
+            rules: vec![RuleStep {
+                reason: "plants lost to blight before fruiting".into(),
+                first: 2,
+                second: 0,
+                other: 0,
+            }],
             missing: [0, 1],
             incomplete_pairs: 0,
             analysed: [24, 23],
         },
         plot: vec![
-            plot("drip", &[3.2, 4.1, 4.3, 4.6, 4.8, 4.9, 5.0, 5.2, 5.4, 5.9, 6.6]),
+            plot(
+                "drip",
+                &[3.2, 4.1, 4.3, 4.6, 4.8, 4.9, 5.0, 5.2, 5.4, 5.9, 6.6],
+            ),
             plot("hand", &[2.1, 3.0, 3.5, 3.9, 4.2, 4.4, 4.8, 5.0, 5.6, 6.4]),
         ],
         paired_plot: None,
@@ -192,8 +254,19 @@ fn h1() -> HypothesisResult {
 }
 
 fn h2() -> HypothesisResult {
-    let estimate = Estimate { name: "Hodges–Lehmann shift".into(), value: 0.75, ci_low: Some(-0.25), ci_high: Some(1.5), confidence: 0.95 };
-    let effect = EffectSize { name: "rank-biserial".into(), value: 0.29, ci_low: Some(-0.12), ci_high: Some(0.61) };
+    let estimate = Estimate {
+        name: "Hodges–Lehmann shift".into(),
+        value: 0.75,
+        ci_low: Some(-0.25),
+        ci_high: Some(1.5),
+        confidence: 0.95,
+    };
+    let effect = EffectSize {
+        name: "rank-biserial".into(),
+        value: 0.29,
+        ci_low: Some(-0.12),
+        ci_high: Some(0.61),
+    };
     let test = TestResult {
         method: "wilcoxon-signed-rank".into(),
         statistic_name: "W+".into(),
@@ -233,20 +306,41 @@ fn h2() -> HypothesisResult {
         test,
         checks: Checks {
             check_alpha: 0.05,
-            normality: vec![NormalityCheck { label: "differences".into(), n: 18, w: Some(0.902), p: Some(0.061), rejected: Some(false), not_run: None }],
+            normality: vec![NormalityCheck {
+                label: "differences".into(),
+                n: 18,
+                w: Some(0.902),
+                p: Some(0.061),
+                rejected: Some(false),
+                not_run: None,
+            }],
             spread: vec![],
             branch: None,
         },
         robustness: vec![],
         equivalence: None,
-        rows: RowFlow { read: [20, 20], other_levels: 0, rules: vec![], missing: [1, 1], incomplete_pairs: 1, analysed: [18, 18] },
+        rows: RowFlow {
+            read: [20, 20],
+            other_levels: 0,
+            rules: vec![],
+            missing: [1, 1],
+            incomplete_pairs: 1,
+            analysed: [18, 18],
+        },
         plot: vec![
             plot("hours_after", &[1.0, 3.0, 4.0, 5.0, 6.0, 9.0]),
             plot("hours_before", &[1.0, 3.0, 4.0, 4.5, 5.5, 8.0]),
             plot("difference", &[-2.0, -1.0, 0.0, 0.5, 1.0, 1.5, 3.0]),
         ],
         paired_plot: Some(PairedPlot {
-            pairs: vec![[5.0, 4.0], [3.0, 3.0], [6.0, 4.5], [1.0, 2.0], [9.0, 8.0], [4.0, 5.5]],
+            pairs: vec![
+                [5.0, 4.0],
+                [3.0, 3.0],
+                [6.0, 4.5],
+                [1.0, 2.0],
+                [9.0, 8.0],
+                [4.0, 5.5],
+            ],
             sampled: false,
         }),
     }
@@ -291,24 +385,42 @@ fn lock_of(r: &Results) -> attest::lock::LockFile {
         analysis_file: "garden.toml".into(),
         plan_sha256: r.plan_sha256.clone(),
         plan: r.plan.clone(),
-        data: attest::lock::LockedData { path: "garden.csv".into(), existed: false, sha256: None },
+        data: attest::lock::LockedData {
+            path: "garden.csv".into(),
+            existed: false,
+            sha256: None,
+        },
         content_sha256: "a9b8c7d6e5f4a3b2c1d0e9f8a7b6c5d4e3f2a1b0c9d8e7f6a5b4c3d2e1f0a9b8".into(),
     }
 }
 
 /// Whether the HTML refers to anything outside itself.
 fn external_references(html: &str) -> Vec<&'static str> {
-    ["http://", "https://", "<script", "<link", "<iframe", "<img", "@import", "url(", "src=", "href=\"//"]
-        .into_iter()
-        .filter(|needle| html.to_ascii_lowercase().contains(needle))
-        .collect()
+    [
+        "http://",
+        "https://",
+        "<script",
+        "<link",
+        "<iframe",
+        "<img",
+        "@import",
+        "url(",
+        "src=",
+        "href=\"//",
+    ]
+    .into_iter()
+    .filter(|needle| html.to_ascii_lowercase().contains(needle))
+    .collect()
 }
 
 #[test]
 fn html_is_self_contained() {
     let out = render_report(&scenario(), None).unwrap();
     assert_eq!(external_references(&out.report_html), Vec::<&str>::new());
-    assert!(out.report_html.matches("<svg").count() >= 5, "figures are inline");
+    assert!(
+        out.report_html.matches("<svg").count() >= 5,
+        "figures are inline"
+    );
     let plan = render_plan(&lock_of(&scenario()), None).unwrap();
     assert_eq!(external_references(&plan.plan_html), Vec::<&str>::new());
 }
@@ -320,7 +432,8 @@ fn script_labels_and_html_claims_show_as_text() {
     r.hypotheses[0].labels[0] = evil.into();
     r.hypotheses[0].groups[0].label = evil.into();
     r.hypotheses[0].plot[0].label = evil.into();
-    r.hypotheses[0].claim = "Drip <b onmouseover=\"x()\">wins</b> *really* [link](javascript:x)".into();
+    r.hypotheses[0].claim =
+        "Drip <b onmouseover=\"x()\">wins</b> *really* [link](javascript:x)".into();
     r.plan.title = "<img src=x onerror=alert(1)>".into();
     let out = render_report(&r, None).unwrap();
     let html = &out.report_html;
@@ -328,13 +441,25 @@ fn script_labels_and_html_claims_show_as_text() {
     assert!(!html.contains("<b onmouseover"), "a claim became markup");
     assert!(!html.contains("<img"), "the title became markup");
     assert!(!html.contains("href=\"javascript"), "a claim became a link");
-    assert!(html.contains("&lt;script&gt;alert(1)&lt;/script&gt;"), "the label is shown");
-    assert!(html.contains("*really* [link](javascript:x)"), "the claim is shown as written");
+    assert!(
+        html.contains("&lt;script&gt;alert(1)&lt;/script&gt;"),
+        "the label is shown"
+    );
+    assert!(
+        html.contains("*really* [link](javascript:x)"),
+        "the claim is shown as written"
+    );
     for (_, svg) in &out.figures {
-        assert!(!svg.contains("<script"), "an SVG carries the label as markup");
+        assert!(
+            !svg.contains("<script"),
+            "an SVG carries the label as markup"
+        );
     }
     let md = &out.report_md;
-    assert!(md.contains("\\<script\\>alert(1)\\</script\\>"), "Markdown escapes the label");
+    assert!(
+        md.contains("\\<script\\>alert(1)\\</script\\>"),
+        "Markdown escapes the label"
+    );
 }
 
 #[test]
@@ -360,7 +485,11 @@ fn a_broken_user_template_is_a_readable_error() {
     let dir = tempfile::tempdir().unwrap();
     std::fs::write(dir.path().join("plan.md.j2"), "{% for %}").unwrap();
     let err = render_plan(&lock_of(&scenario()), Some(dir.path())).unwrap_err();
-    assert!(err.to_string().starts_with("error: template plan.md.j2 failed"), "{err}");
+    assert!(
+        err.to_string()
+            .starts_with("error: template plan.md.j2 failed"),
+        "{err}"
+    );
 }
 
 #[test]
@@ -379,11 +508,22 @@ fn every_figure_is_labelled() {
     let names: Vec<&str> = out.figures.iter().map(|(n, _)| n.as_str()).collect();
     assert_eq!(
         names,
-        ["h1-groups.svg", "h1-qq.svg", "h1-difference.svg", "h2-pairs.svg", "h2-differences.svg", "h2-qq.svg", "h2-difference.svg"]
+        [
+            "h1-groups.svg",
+            "h1-qq.svg",
+            "h1-difference.svg",
+            "h2-pairs.svg",
+            "h2-qq.svg",
+            "h2-differences.svg",
+            "h2-difference.svg"
+        ]
     );
     for (name, svg) in &out.figures {
         assert!(svg.contains("<title") && svg.contains("<desc"), "{name}");
-        assert!(out.report_md.contains(&format!("]({name})")), "{name} is referenced");
+        assert!(
+            out.report_md.contains(&format!("]({name})")),
+            "{name} is referenced"
+        );
     }
 }
 
@@ -396,10 +536,17 @@ fn status_lines_follow_the_lock_state() {
         locked: "0.05".into(),
         current: "0.1".into(),
     }];
-    r.deviations = vec![Deviation { date: "2026-05-01".into(), change: "alpha".into(), reason: "the funder asked".into() }];
+    r.deviations = vec![Deviation {
+        date: "2026-05-01".into(),
+        change: "alpha".into(),
+        reason: "the funder asked".into(),
+    }];
     let md = render_report(&r, None).unwrap().report_md;
     assert!(md.contains("**Ran with deviations from the lock** (locked 2026-04-02)"));
-    assert!(md.contains("| alpha | 0\\.05 | 0\\.1 |") || md.contains("| alpha | 0.05 | 0.1 |"), "{md}");
+    assert!(
+        md.contains("| alpha | 0\\.05 | 0\\.1 |") || md.contains("| alpha | 0.05 | 0.1 |"),
+        "{md}"
+    );
     assert!(md.contains("the funder asked"));
     r.lock = LockState::Unlocked;
     r.lock_record = None;

@@ -17,7 +17,11 @@ pub fn fixed(x: f64, decimals: usize) -> String {
         return "not defined".into();
     }
     if x.is_infinite() {
-        return if x > 0.0 { "∞".into() } else { format!("{MINUS}∞") };
+        return if x > 0.0 {
+            "∞".into()
+        } else {
+            format!("{MINUS}∞")
+        };
     }
     let s = format!("{:.*}", decimals, x.abs());
     let rounds_to_zero = s.chars().all(|c| c == '0' || c == '.');
@@ -109,7 +113,12 @@ pub fn bounds(low: Option<f64>, high: Option<f64>, fmt: impl Fn(f64) -> String) 
 }
 
 /// An interval with its level: `95% CI [1.23, 4.56]`.
-pub fn ci(confidence: f64, low: Option<f64>, high: Option<f64>, fmt: impl Fn(f64) -> String) -> String {
+pub fn ci(
+    confidence: f64,
+    low: Option<f64>,
+    high: Option<f64>,
+    fmt: impl Fn(f64) -> String,
+) -> String {
     format!("{} CI {}", level(confidence), bounds(low, high, fmt))
 }
 
@@ -199,7 +208,10 @@ mod tests {
     #[test]
     fn intervals_in_square_brackets_with_level() {
         // APA Publication Manual, 7th ed., 6.43: 95% CI [LL, UL].
-        assert_eq!(ci(0.95, Some(1.234), Some(4.561), two), "95% CI [1.23, 4.56]");
+        assert_eq!(
+            ci(0.95, Some(1.234), Some(4.561), two),
+            "95% CI [1.23, 4.56]"
+        );
         assert_eq!(level(0.9), "90%");
     }
 

@@ -43,7 +43,13 @@ const PALETTE: [RGBColor; 2] = [BLUE, ORANGE];
 pub fn stem(id: &str, index: usize, used: &[String]) -> String {
     let s: String = id
         .chars()
-        .map(|c| if c.is_ascii_alphanumeric() { c.to_ascii_lowercase() } else { '-' })
+        .map(|c| {
+            if c.is_ascii_alphanumeric() {
+                c.to_ascii_lowercase()
+            } else {
+                '-'
+            }
+        })
         .collect();
     let s = s.trim_matches('-').to_string();
     if s.is_empty() || used.contains(&s) {
@@ -56,37 +62,47 @@ pub fn stem(id: &str, index: usize, used: &[String]) -> String {
 /// The figures of one hypothesis, in the order the report shows them.
 pub fn for_hypothesis(h: &HypothesisResult, stem: &str) -> Vec<Figure> {
     let mut out = Vec::new();
-    let sampled = h.plot.iter().any(|p| p.sampled)
-        || h.paired_plot.as_ref().is_some_and(|p| p.sampled);
+    let sampled =
+        h.plot.iter().any(|p| p.sampled) || h.paired_plot.as_ref().is_some_and(|p| p.sampled);
     let sample_note = if sampled {
         " The points are an evenly spaced sample of the sorted values, not every value."
     } else {
         ""
     };
-    let unit = h.units.as_deref().map(|u| format!(" ({u})")).unwrap_or_default();
+    let unit = h
+        .units
+        .as_deref()
+        .map(|u| format!(" ({u})"))
+        .unwrap_or_default();
     let axis = format!("{}{unit}", h.outcome_label);
     if h.design == "paired" {
         if let Some(pp) = &h.paired_plot {
             let desc = format!(
                 "Each line joins one unit's value in {} (left) to its value in {} (right).{}",
-                h.labels[0], h.labels[1],
-                if pp.sampled { " The lines are a sample of all units." } else { "" }
+                h.labels[0],
+                h.labels[1],
+                if pp.sampled {
+                    " The lines are a sample of all units."
+                } else {
+                    ""
+                }
             );
-            out.push(make(stem, "pairs", "Each unit, before and after", desc, |a| pairs(a, h, &axis)));
-        }
-        if let Some(d) = h.plot.iter().find(|p| p.label == "difference").or(h.plot.last()) {
-            let desc = format!(
-                "How often each size of difference ({} − {}) occurred, over all analysed units; the dashed line marks zero.",
-                h.labels[0], h.labels[1]
-            );
-            out.push(make(stem, "differences", "Each unit's difference", desc, |a| histogram(a, d, &axis)));
+            out.push(make(
+                stem,
+                "pairs",
+                "Each unit, before and after",
+                desc,
+                |a| pairs(a, h, &axis),
+            ));
         }
     } else {
         let desc = format!(
             "Each dot is one value, spread sideways only to avoid overlap. The box spans the quartiles with the median as a line; the whiskers reach the smallest and largest values.{}{sample_note}",
             if h.design == "one-sample" { " The dashed line marks the reference value." } else { "" }
         );
-        out.push(make(stem, "groups", "Each group's values", desc, |a| groups(a, h, &axis)));
+        out.push(make(stem, "groups", "Each group's values", desc, |a| {
+            groups(a, h, &axis)
+        }));
     }
     let qq_sets: Vec<&PlotData> = if h.design == "paired" {
         h.plot.iter().filter(|p| p.label == "difference").collect()
@@ -97,10 +113,41 @@ pub fn for_hypothesis(h: &HypothesisResult, stem: &str) -> Vec<Figure> {
         let desc = format!(
             "Sample values against the values a normal distribution would give at the same ranks; points near the line mean the shape is close to normal. The line runs through the quartiles.{sample_note}"
         );
-        out.push(make(stem, "qq", "Normal Q–Q, each group", desc, |a| qq(a, &qq_sets)));
+        let title = if h.design == "paired" {
+            "Normal Q–Q, the differences"
+        } else {
+            "Normal Q–Q, each group"
+        };
+        out.push(make(stem, "qq", title, desc, |a| qq(a, &qq_sets)));
+    }
+    if h.design == "paired" {
+        if let Some(d) = h
+            .plot
+            .iter()
+            .find(|p| p.label == "difference")
+            .or(h.plot.last())
+        {
+            let desc = format!(
+                "How often each size of difference ({} − {}) occurred, over all analysed units; the dashed line marks zero.",
+                h.labels[0], h.labels[1]
+            );
+            out.push(make(
+                stem,
+                "differences",
+                "Each unit's difference",
+                desc,
+                |a| histogram(a, d, &axis),
+            ));
+        }
     }
     let desc = difference_desc(h);
-    out.push(make(stem, "difference", "The difference and its interval", desc, |a| difference(a, h)));
+    out.push(make(
+        stem,
+        "difference",
+        "The difference and its interval",
+        desc,
+        |a| difference(a, h),
+    ));
     out
 }
 
@@ -110,7 +157,11 @@ fn difference_desc(h: &HypothesisResult) -> String {
         Alternative::TwoSided => "",
         _ => " The interval is one-sided: its open side runs to the edge of the plot, marked by an arrow.",
     };
-    let eq = if h.equivalence.is_some() { " Dotted lines mark the equivalence bounds." } else { "" };
+    let eq = if h.equivalence.is_some() {
+        " Dotted lines mark the equivalence bounds."
+    } else {
+        ""
+    };
     format!(
         "The {} (dot) with its {:.0}% confidence interval (bar); the dashed line marks no difference.{open}{eq}",
         e.name,
@@ -132,7 +183,10 @@ fn make(
     let mut buf = String::new();
     let drawn = {
         let root = SVGBackend::with_string(&mut buf, size).into_drawing_area();
-        let r = root.fill(&WHITE).map_err(Into::into).and_then(|_| draw(&root));
+        let r = root
+            .fill(&WHITE)
+            .map_err(Into::into)
+            .and_then(|_| draw(&root));
         r.and_then(|_| root.present().map_err(Into::into))
     };
     if drawn.is_err() {
@@ -158,13 +212,18 @@ fn placeholder(size: (u32, u32)) -> String {
 }
 
 fn xml_escape(s: &str) -> String {
-    s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;")
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
 }
 
 /// Puts `<title>` and `<desc>` first inside the `<svg>` element and marks
 /// it as an image labelled by them.
 fn label_svg(svg: &str, id: &str, title: &str, desc: &str) -> String {
-    let Some(end) = svg.find('>') else { return svg.to_string() };
+    let Some(end) = svg.find('>') else {
+        return svg.to_string();
+    };
     let (open, rest) = svg.split_at(end);
     format!(
         "{open} role=\"img\" aria-labelledby=\"{id}-title {id}-desc\">\n<title id=\"{id}-title\">{}</title>\n<desc id=\"{id}-desc\">{}</desc>{}",
@@ -188,7 +247,11 @@ fn span(values: impl IntoIterator<Item = f64>) -> (f64, f64) {
     if !lo.is_finite() {
         return (-1.0, 1.0);
     }
-    let pad = if hi > lo { (hi - lo) * 0.08 } else { lo.abs().max(1.0) * 0.1 };
+    let pad = if hi > lo {
+        (hi - lo) * 0.08
+    } else {
+        lo.abs().max(1.0) * 0.1
+    };
     (lo - pad, hi + pad)
 }
 
@@ -229,10 +292,22 @@ fn groups(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
         let colour = PALETTE[gi % 2];
         if let Some(g) = h.groups.get(gi) {
             let w = 0.28;
-            chart.draw_series(std::iter::once(Rectangle::new([(x0 - w, g.q1), (x0 + w, g.q3)], GREY.stroke_width(1))))?;
-            chart.draw_series(std::iter::once(PathElement::new(vec![(x0 - w, g.median), (x0 + w, g.median)], GREY.stroke_width(2))))?;
-            chart.draw_series(std::iter::once(PathElement::new(vec![(x0, g.q3), (x0, g.max)], GREY.stroke_width(1))))?;
-            chart.draw_series(std::iter::once(PathElement::new(vec![(x0, g.q1), (x0, g.min)], GREY.stroke_width(1))))?;
+            chart.draw_series(std::iter::once(Rectangle::new(
+                [(x0 - w, g.q1), (x0 + w, g.q3)],
+                GREY.stroke_width(1),
+            )))?;
+            chart.draw_series(std::iter::once(PathElement::new(
+                vec![(x0 - w, g.median), (x0 + w, g.median)],
+                GREY.stroke_width(2),
+            )))?;
+            chart.draw_series(std::iter::once(PathElement::new(
+                vec![(x0, g.q3), (x0, g.max)],
+                GREY.stroke_width(1),
+            )))?;
+            chart.draw_series(std::iter::once(PathElement::new(
+                vec![(x0, g.q1), (x0, g.min)],
+                GREY.stroke_width(1),
+            )))?;
         }
         chart.draw_series(
             finite(&p.points)
@@ -242,13 +317,13 @@ fn groups(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
         )?;
     }
     if let Some(r) = h.reference {
-        chart.draw_series(dashed((-0.5, r), (k as f64 - 0.5, r), lo, hi, true))?;
+        chart.draw_series(dashed((-0.5, r), (k as f64 - 0.5, r)))?;
     }
     Ok(())
 }
 
 /// A dashed line drawn as short segments (plotters has no dash style).
-fn dashed(from: (f64, f64), to: (f64, f64), _lo: f64, _hi: f64, _h: bool) -> Vec<PathElement<(f64, f64)>> {
+fn dashed(from: (f64, f64), to: (f64, f64)) -> Vec<PathElement<(f64, f64)>> {
     let n = 40;
     (0..n)
         .step_by(2)
@@ -268,7 +343,9 @@ fn qq(area: &Area, sets: &[&PlotData]) -> DrawResult {
         let n = ys.len();
         let mut sorted = ys.clone();
         sorted.sort_by(f64::total_cmp);
-        let xs: Vec<f64> = (0..n).map(|i| normal_quantile((i as f64 + 0.5) / n as f64)).collect();
+        let xs: Vec<f64> = (0..n)
+            .map(|i| normal_quantile((i as f64 + 0.5) / n as f64))
+            .collect();
         let (xlo, xhi) = span(xs.iter().copied().chain([-1.0, 1.0]));
         let (ylo, yhi) = span(sorted.iter().copied());
         let mut chart = ChartBuilder::on(panel)
@@ -294,7 +371,10 @@ fn qq(area: &Area, sets: &[&PlotData]) -> DrawResult {
             let (z1, z3) = (normal_quantile(0.25), normal_quantile(0.75));
             let slope = (q(0.75) - q(0.25)) / (z3 - z1);
             let at = |z: f64| q(0.25) + slope * (z - z1);
-            chart.draw_series(std::iter::once(PathElement::new(vec![(xlo, at(xlo)), (xhi, at(xhi))], GREY.stroke_width(1))))?;
+            chart.draw_series(std::iter::once(PathElement::new(
+                vec![(xlo, at(xlo)), (xhi, at(xhi))],
+                GREY.stroke_width(1),
+            )))?;
         }
         chart.draw_series(
             xs.iter()
@@ -314,7 +394,11 @@ fn difference(area: &Area, h: &HypothesisResult) -> DrawResult {
         vals.extend([eq.low, eq.high, eq.ci_low, eq.ci_high]);
     }
     let (lo, hi) = span(vals);
-    let unit = h.units.as_deref().map(|u| format!(" ({u})")).unwrap_or_default();
+    let unit = h
+        .units
+        .as_deref()
+        .map(|u| format!(" ({u})"))
+        .unwrap_or_default();
     let mut chart = ChartBuilder::on(area)
         .margin(14)
         .x_label_area_size(34)
@@ -324,10 +408,13 @@ fn difference(area: &Area, h: &HypothesisResult) -> DrawResult {
         .configure_mesh()
         .disable_y_mesh()
         .disable_y_axis()
-        .x_desc(format!("{}{unit}, {} − {}", e.name, h.labels[0], h.labels[1]))
+        .x_desc(format!(
+            "{}{unit}, {} − {}",
+            e.name, h.labels[0], h.labels[1]
+        ))
         .light_line_style(WHITE)
         .draw()?;
-    chart.draw_series(dashed((0.0, 0.0), (0.0, 1.0), lo, hi, false))?;
+    chart.draw_series(dashed((0.0, 0.0), (0.0, 1.0)))?;
     if let Some(eq) = &h.equivalence {
         for b in [eq.low, eq.high] {
             chart.draw_series((0..20).step_by(3).map(|i| {
@@ -339,13 +426,23 @@ fn difference(area: &Area, h: &HypothesisResult) -> DrawResult {
     let y = 0.5;
     let left = e.ci_low.unwrap_or(lo);
     let right = e.ci_high.unwrap_or(hi);
-    chart.draw_series(std::iter::once(PathElement::new(vec![(left, y), (right, y)], BLUE.stroke_width(3))))?;
+    chart.draw_series(std::iter::once(PathElement::new(
+        vec![(left, y), (right, y)],
+        BLUE.stroke_width(3),
+    )))?;
     let dx = (hi - lo) * 0.025;
     for (bound, edge, dir) in [(e.ci_low, lo, -1.0), (e.ci_high, hi, 1.0)] {
         match bound {
-            Some(b) => chart.draw_series(std::iter::once(PathElement::new(vec![(b, y - 0.08), (b, y + 0.08)], BLUE.stroke_width(3))))?,
+            Some(b) => chart.draw_series(std::iter::once(PathElement::new(
+                vec![(b, y - 0.08), (b, y + 0.08)],
+                BLUE.stroke_width(3),
+            )))?,
             None => chart.draw_series(std::iter::once(Polygon::new(
-                vec![(edge, y), (edge - dir * dx, y - 0.07), (edge - dir * dx, y + 0.07)],
+                vec![
+                    (edge, y),
+                    (edge - dir * dx, y - 0.07),
+                    (edge - dir * dx, y + 0.07),
+                ],
                 BLUE.filled(),
             )))?,
         };
@@ -355,8 +452,15 @@ fn difference(area: &Area, h: &HypothesisResult) -> DrawResult {
 }
 
 fn pairs(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
-    let Some(pp) = &h.paired_plot else { return Ok(()) };
-    let pts: Vec<[f64; 2]> = pp.pairs.iter().copied().filter(|p| p[0].is_finite() && p[1].is_finite()).collect();
+    let Some(pp) = &h.paired_plot else {
+        return Ok(());
+    };
+    let pts: Vec<[f64; 2]> = pp
+        .pairs
+        .iter()
+        .copied()
+        .filter(|p| p[0].is_finite() && p[1].is_finite())
+        .collect();
     let (lo, hi) = span(pts.iter().flat_map(|p| [p[0], p[1]]));
     let labels = h.labels.clone();
     let mut chart = ChartBuilder::on(area)
@@ -382,10 +486,16 @@ fn pairs(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
         .draw()?;
     chart.draw_series(pts.iter().map(|p| {
         let colour = if p[1] > p[0] { ORANGE } else { BLUE };
-        PathElement::new(vec![(0.0, p[0]), (1.0, p[1])], colour.mix(0.6).stroke_width(1))
+        PathElement::new(
+            vec![(0.0, p[0]), (1.0, p[1])],
+            colour.mix(0.6).stroke_width(1),
+        )
     }))?;
     chart.draw_series(pts.iter().flat_map(|p| {
-        [Circle::new((0.0, p[0]), 2, GREY.filled()), Circle::new((1.0, p[1]), 2, GREY.filled())]
+        [
+            Circle::new((0.0, p[0]), 2, GREY.filled()),
+            Circle::new((1.0, p[1]), 2, GREY.filled()),
+        ]
     }))?;
     Ok(())
 }
@@ -393,7 +503,11 @@ fn pairs(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
 fn histogram(area: &Area, d: &PlotData, axis: &str) -> DrawResult {
     let edges = finite(&d.bin_edges);
     let valid = edges.len() == d.bin_counts.len() + 1 && !d.bin_counts.is_empty();
-    let (lo, hi) = if valid { span(edges.iter().copied().chain([0.0])) } else { span(finite(&d.points).into_iter().chain([0.0])) };
+    let (lo, hi) = if valid {
+        span(edges.iter().copied().chain([0.0]))
+    } else {
+        span(finite(&d.points).into_iter().chain([0.0]))
+    };
     let top = d.bin_counts.iter().copied().max().unwrap_or(1).max(1) as f64 * 1.1;
     let mut chart = ChartBuilder::on(area)
         .margin(12)
@@ -409,9 +523,12 @@ fn histogram(area: &Area, d: &PlotData, axis: &str) -> DrawResult {
         .draw()?;
     if valid {
         chart.draw_series(d.bin_counts.iter().enumerate().map(|(i, &c)| {
-            Rectangle::new([(edges[i], 0.0), (edges[i + 1], c as f64)], BLUE.mix(0.6).filled())
+            Rectangle::new(
+                [(edges[i], 0.0), (edges[i + 1], c as f64)],
+                BLUE.mix(0.6).filled(),
+            )
         }))?;
     }
-    chart.draw_series(dashed((0.0, 0.0), (0.0, top), 0.0, top, false))?;
+    chart.draw_series(dashed((0.0, 0.0), (0.0, top)))?;
     Ok(())
 }

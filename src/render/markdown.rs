@@ -23,13 +23,17 @@ pub fn escape(text: &str) -> String {
     let mut at_start = true;
     let mut chars = text.chars().peekable();
     while let Some(c) = chars.next() {
-        let c = if c == '\n' || c == '\r' || c == '\t' { ' ' } else { c };
+        let c = if c == '\n' || c == '\r' || c == '\t' {
+            ' '
+        } else {
+            c
+        };
         match c {
             '\\' | '`' | '*' | '_' | '[' | ']' | '<' | '>' | '&' | '|' | '~' | '!' | '$' => {
                 out.push('\\');
                 out.push(c);
             }
-            '#' | '+' | '-' | '=' if at_start => {
+            '#' | '+' | '-' | '=' if at_start && opens_block(c, chars.peek().copied()) => {
                 out.push('\\');
                 out.push(c);
             }
@@ -44,8 +48,9 @@ pub fn escape(text: &str) -> String {
                         break;
                     }
                 }
-                if let Some(&d) = chars.peek() {
-                    if d == '.' || d == ')' {
+                let mut ahead = chars.clone();
+                if let Some(d) = ahead.next().filter(|d| *d == '.' || *d == ')') {
+                    if ahead.next().is_none_or(char::is_whitespace) {
                         out.push('\\');
                         out.push(d);
                         chars.next();
@@ -57,6 +62,12 @@ pub fn escape(text: &str) -> String {
         at_start = false;
     }
     out
+}
+
+/// Whether `c` at the start of a line, followed by `next`, could open a
+/// heading, list, thematic break or setext underline.
+fn opens_block(c: char, next: Option<char>) -> bool {
+    c == '=' || next.is_none_or(|n| n.is_whitespace() || n == c)
 }
 
 /// Escapes multi-paragraph text: paragraphs (separated by blank lines) are
@@ -138,10 +149,19 @@ mod tests {
 
     #[test]
     fn line_starts_cannot_open_blocks() {
-        for raw in ["# head", "- item", "1. item", "> quote", "+ item"] {
+        for raw in [
+            "# head", "- item", "1. item", "> quote", "+ item", "---", "2)",
+        ] {
             let out = html(&escape(raw));
             assert!(out.starts_with("<p>"), "{raw} gave {out}");
         }
+    }
+
+    #[test]
+    fn versions_and_words_stay_readable() {
+        assert_eq!(escape("0.1.0"), "0.1.0");
+        assert_eq!(escape("-5 degrees"), "-5 degrees");
+        assert_eq!(escape("snake_case"), "snake\\_case");
     }
 
     #[test]

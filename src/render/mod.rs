@@ -58,7 +58,10 @@ pub fn render_plan(lock: &crate::lock::LockFile, templates: Option<&Path>) -> Re
 /// The embedded templates, by name.
 const EMBEDDED: &[(&str, &str)] = &[
     ("report.md.j2", include_str!("../../templates/report.md.j2")),
-    ("report.html.j2", include_str!("../../templates/report.html.j2")),
+    (
+        "report.html.j2",
+        include_str!("../../templates/report.html.j2"),
+    ),
     ("plan.md.j2", include_str!("../../templates/plan.md.j2")),
     ("plan.html.j2", include_str!("../../templates/plan.html.j2")),
     ("macros.md.j2", include_str!("../../templates/macros.md.j2")),
@@ -133,7 +136,9 @@ fn load(user: Option<&Path>, name: &str) -> std::result::Result<Option<String>, 
 /// Renders one template with a context, mapping template errors to a
 /// user-facing failure that names the template.
 fn render_template(env: &Environment<'static>, name: &str, ctx: Value) -> Result<String> {
-    let tmpl = env.get_template(name).map_err(|e| template_failure(name, &e))?;
+    let tmpl = env
+        .get_template(name)
+        .map_err(|e| template_failure(name, &e))?;
     tmpl.render(ctx).map_err(|e| template_failure(name, &e))
 }
 
@@ -144,9 +149,8 @@ fn template_failure(name: &str, e: &minijinja::Error) -> Failure {
         what.push_str(&format!(": {s}"));
         src = s.source();
     }
-    Failure::input(what).help(
-        "check the template in the --templates folder, or remove it to use the built-in one",
-    )
+    Failure::input(what)
+        .help("check the template in the --templates folder, or remove it to use the built-in one")
 }
 
 /// Markdown the renderer wrote itself: inserted into templates as it is.
@@ -155,7 +159,13 @@ fn md(s: impl Into<String>) -> Value {
 }
 
 /// Wraps a Markdown body in the HTML page template.
-fn page(env: &Environment<'static>, name: &str, title: &str, body_md: &str, figures: &std::collections::BTreeMap<String, String>) -> Result<String> {
+fn page(
+    env: &Environment<'static>,
+    name: &str,
+    title: &str,
+    body_md: &str,
+    figures: &std::collections::BTreeMap<String, String>,
+) -> Result<String> {
     let body = markdown::to_html(body_md, figures);
     render_template(
         env,

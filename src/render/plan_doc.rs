@@ -28,10 +28,12 @@ pub(super) fn render(lock: &LockFile, env: &Environment<'static>) -> Result<Plan
         hypotheses => p.hypotheses.iter().map(|h| hypothesis(h, p.confidence)).collect::<Vec<_>>(),
         choice => p.hypotheses.iter().map(|h| md(choice(h, p.check_alpha))).collect::<Vec<_>>(),
         thresholds => md(format!(
-            "Each hypothesis is judged at α = {}; intervals are {} intervals; multiple hypotheses are corrected with: {}. Seed for anything resampled: {}.",
+            "Each hypothesis is judged at α = {}; intervals are {} intervals; {}. Seed for anything resampled: {}.",
             apa::bounded(p.alpha, 3).trim_end_matches('0'),
             apa::level(p.confidence),
-            escape(p.correction.as_str()),
+            super::sentence::correction_method(p.correction)
+                .map(|m| format!("p values are adjusted across the hypotheses with {m}"))
+                .unwrap_or_else(|| "p values are not adjusted for multiple hypotheses".into()),
             p.seed
         )),
         exclusions => p.exclude.iter().map(|r| md(exclusion(r))).collect::<Vec<_>>(),
@@ -58,7 +60,12 @@ fn labels(h: &Hypothesis) -> (String, String) {
 }
 
 fn outcome(h: &Hypothesis) -> String {
-    escape(h.label.as_deref().or(h.outcome.as_deref()).unwrap_or("the outcome"))
+    escape(
+        h.label
+            .as_deref()
+            .or(h.outcome.as_deref())
+            .unwrap_or("the outcome"),
+    )
 }
 
 fn compared(h: &Hypothesis) -> String {
@@ -100,9 +107,25 @@ fn hypothesis(h: &Hypothesis, _confidence: f64) -> Vec<Value> {
         }
         None => {
             let (h0, h1, words) = match h.alternative {
-                Alternative::TwoSided => ("=", "≠", "the difference is not zero, in either direction".to_string()),
-                Alternative::Greater => ("≤", ">", format!("{a} is higher than {b}; a difference the other way counts as no support")),
-                Alternative::Less => ("≥", "<", format!("{a} is lower than {b}; a difference the other way counts as no support")),
+                Alternative::TwoSided => (
+                    "=",
+                    "≠",
+                    "the difference is not zero, in either direction".to_string(),
+                ),
+                Alternative::Greater => (
+                    "≤",
+                    ">",
+                    format!(
+                        "{a} is higher than {b}; a difference the other way counts as no support"
+                    ),
+                ),
+                Alternative::Less => (
+                    "≥",
+                    "<",
+                    format!(
+                        "{a} is lower than {b}; a difference the other way counts as no support"
+                    ),
+                ),
             };
             lines.push(md(format!("H0: {delta} {h0} 0")));
             lines.push(md(format!("H1: {delta} {h1} 0")));
@@ -116,14 +139,20 @@ fn hypothesis(h: &Hypothesis, _confidence: f64) -> Vec<Value> {
 }
 
 fn units(h: &Hypothesis) -> String {
-    h.units.as_deref().map(|u| format!(" {}", escape(u))).unwrap_or_default()
+    h.units
+        .as_deref()
+        .map(|u| format!(" {}", escape(u)))
+        .unwrap_or_default()
 }
 
 fn choice(h: &Hypothesis, check_alpha: f64) -> String {
     let id = escape(&h.id);
     let a = apa::bounded(check_alpha, 2);
     if h.method != Method::Checked {
-        return format!("{id}: {}, fixed in the plan; the checks are reported but decide nothing.", method_name(h.method.as_str()));
+        return format!(
+            "{id}: {}, fixed in the plan; the checks are reported but decide nothing.",
+            method_name(h.method.as_str())
+        );
     }
     match h.design {
         Design::Independent => format!(

@@ -97,7 +97,10 @@ pub(super) fn render(r: &Results, env: &Environment<'static>) -> Result<Rendered
         command => md(code_block(&r.command)),
     };
     let report_md = render_template(env, "report.md.j2", ctx)?;
-    let svgs: BTreeMap<String, String> = all_figures.iter().map(|f| (f.file.clone(), f.svg.clone())).collect();
+    let svgs: BTreeMap<String, String> = all_figures
+        .iter()
+        .map(|f| (f.file.clone(), f.svg.clone()))
+        .collect();
     let report_html = page(env, "report.html.j2", &r.plan.title, &report_md, &svgs)?;
     Ok(Rendered {
         report_md,
@@ -126,7 +129,9 @@ fn status(r: &Results) -> String {
     };
     if let Some(l) = &r.lock_record {
         if !l.intact {
-            s.push_str(" The lock file does not match its own hash: it was edited after it was written.");
+            s.push_str(
+                " The lock file does not match its own hash: it was edited after it was written.",
+            );
         }
     }
     s
@@ -162,7 +167,10 @@ fn verdict(h: &HypothesisResult) -> &'static str {
 }
 
 fn units(h: &HypothesisResult) -> String {
-    h.units.as_deref().map(|u| format!(" {}", escape(u))).unwrap_or_default()
+    h.units
+        .as_deref()
+        .map(|u| format!(" {}", escape(u)))
+        .unwrap_or_default()
 }
 
 fn glance(r: &Results, h: &HypothesisResult) -> GlanceRow {
@@ -188,7 +196,11 @@ fn glance(r: &Results, h: &HypothesisResult) -> GlanceRow {
             units(h),
             apa::bounds(e.ci_low, e.ci_high, two)
         )),
-        effect: md(effect.replace(", 95% CI", "").replacen(&format!(", {} CI", apa::level(e.confidence)), "", 1)),
+        effect: md(effect.replace(", 95% CI", "").replacen(
+            &format!(", {} CI", apa::level(e.confidence)),
+            "",
+            1,
+        )),
         p: md(p),
         verdict: verdict(h).into(),
     }
@@ -221,8 +233,16 @@ fn hypothesis(r: &Results, h: &HypothesisResult, figures: BTreeMap<String, Figur
                 md(method_name(&t.method)),
                 md(sentence::statistic(t)),
                 md(apa::p_number(t.p)),
-                md(format!("{}{} {}", two(t.estimate.value), units(h), apa::bounds(t.estimate.ci_low, t.estimate.ci_high, two))),
-                md(t.effects.first().map(|e| sentence::effect(e, t.estimate.confidence)).unwrap_or_else(|| "—".into())),
+                md(format!(
+                    "{}{} {}",
+                    two(t.estimate.value),
+                    units(h),
+                    apa::bounds(t.estimate.ci_low, t.estimate.ci_high, two)
+                )),
+                md(t.effects
+                    .first()
+                    .map(|e| sentence::effect(e, t.estimate.confidence))
+                    .unwrap_or_else(|| "—".into())),
             ]
         })
         .collect();
@@ -262,7 +282,11 @@ fn checks(h: &HypothesisResult) -> Vec<Value> {
                 _ => format!("{}: not run", escape(&n.label)),
             })
             .collect();
-        let whose = if h.design == "independent" { "each group" } else { "the differences" };
+        let whose = if h.design == "independent" {
+            "each group"
+        } else {
+            "the differences"
+        };
         out.push(md(format!("Shapiro–Wilk, {whose}: {}.", parts.join("; "))));
     }
     for s in &c.spread {
@@ -291,8 +315,16 @@ fn checks(h: &HypothesisResult) -> Vec<Value> {
 fn rule(r: &Results, h: &HypothesisResult) -> String {
     let chosen = method_name(&h.method);
     let alpha = apa::bounded(h.checks.check_alpha, 2);
-    let tail = if r.lock == LockState::Unlocked { "" } else { ", as preregistered" };
-    let both = if h.design == "independent" { "in both groups" } else { "for the differences" };
+    let tail = if r.lock == LockState::Unlocked {
+        ""
+    } else {
+        ", as preregistered"
+    };
+    let both = if h.design == "independent" {
+        "in both groups"
+    } else {
+        "for the differences"
+    };
     match h.checks.branch {
         None => format!(
             "The plan fixed the method ({chosen}); the checks are shown for information and changed nothing."
@@ -312,30 +344,40 @@ fn rule(r: &Results, h: &HypothesisResult) -> String {
 }
 
 fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
-    let mut out = vec![md(format!(
-        "{}: {}, {}.",
-        capital(&method_name(&h.method)),
-        sentence::statistic(&h.test),
-        sentence::p_of(h, r.plan.correction)
-    ))];
+    let planned = if h.method_planned == h.method {
+        String::new()
+    } else {
+        format!(" (planned: {})", method_name(&h.method_planned))
+    };
+    let mut out = vec![
+        md(format!("Method used: {}{planned}.", method_name(&h.method))),
+        md(format!(
+            "{}, {}.",
+            sentence::statistic(&h.test),
+            sentence::p_of(h, r.plan.correction)
+        )),
+    ];
     if let Some(pm) = h.p_method {
         let how = match pm {
-            crate::stats::PMethod::Exact => "p is exact, from the permutation distribution of the statistic",
+            crate::stats::PMethod::Exact => {
+                "is exact, from the permutation distribution of the statistic"
+            }
             crate::stats::PMethod::NormalApproximation => {
-                "p is from the normal approximation, corrected for ties and continuity"
+                "is from the normal approximation, corrected for ties and continuity"
             }
         };
-        out.push(md(format!("{}.", capital(how))));
+        out.push(md(format!("{} {how}.", sym("p"))));
     }
     if let Some(z) = h.test.zeros_dropped.filter(|z| *z > 0) {
-        out.push(md(format!("{z} zero difference(s) were dropped before ranking.")));
-    }
-    if sentence::correction_name(r.plan.correction).is_some() {
         out.push(md(format!(
-            "Unadjusted {}; adjusted across the {} hypotheses of this plan ({}).",
+            "{z} zero difference(s) were dropped before ranking."
+        )));
+    }
+    if let Some(name) = sentence::correction_method(r.plan.correction) {
+        out.push(md(format!(
+            "Unadjusted {}; adjusted across the {} hypotheses of this plan ({name}).",
             apa::p_clause(h.p),
             r.hypotheses.len(),
-            escape(r.plan.correction.as_str())
         )));
     }
     if let Some(eq) = &h.equivalence {
@@ -355,7 +397,10 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
 }
 
 fn size_lines(h: &HypothesisResult) -> Vec<Value> {
-    let mut out = vec![md(capital(&sentence::estimate(&h.estimate, h.units.as_deref())))];
+    let mut out = vec![md(capital(&sentence::estimate(
+        &h.estimate,
+        h.units.as_deref(),
+    )))];
     for e in &h.test.effects {
         out.push(md(capital(&sentence::effect(e, h.estimate.confidence))));
     }
@@ -364,7 +409,8 @@ fn size_lines(h: &HypothesisResult) -> Vec<Value> {
             "For equivalence: {} of the difference {}.",
             apa::level(eq.ci_level),
             apa::bounds(Some(eq.ci_low), Some(eq.ci_high), two)
-        ).replace("% of", "% CI of")));
+        )
+        .replace("% of", "% CI of")));
     }
     out
 }
@@ -383,13 +429,25 @@ fn rows(h: &HypothesisResult) -> Vec<Vec<Value>> {
     let n = |v: usize| md(v.to_string());
     let mut out = vec![vec![md("Read"), n(f.read[0]), n(f.read[1])]];
     for s in &f.rules {
-        out.push(vec![md(format!("Excluded: {}", escape(&s.reason))), n(s.first), n(s.second)]);
+        out.push(vec![
+            md(format!("Excluded: {}", escape(&s.reason))),
+            n(s.first),
+            n(s.second),
+        ]);
     }
     out.push(vec![md("Missing values"), n(f.missing[0]), n(f.missing[1])]);
     if h.design == "paired" {
-        out.push(vec![md("Incomplete pairs"), n(f.incomplete_pairs), n(f.incomplete_pairs)]);
+        out.push(vec![
+            md("Incomplete pairs"),
+            n(f.incomplete_pairs),
+            n(f.incomplete_pairs),
+        ]);
     }
-    out.push(vec![md("**Analysed**"), md(format!("**{}**", f.analysed[0])), md(format!("**{}**", f.analysed[1]))]);
+    out.push(vec![
+        md("**Analysed**"),
+        md(format!("**{}**", f.analysed[0])),
+        md(format!("**{}**", f.analysed[1])),
+    ]);
     out
 }
 
@@ -402,7 +460,11 @@ fn provenance(r: &Results) -> Vec<Value> {
     match &r.lock_record {
         Some(l) => {
             out.push(md(format!("Lock SHA-256: `{}`", l.sha256)));
-            out.push(md(format!("Locked at: {} with attest {}", escape(&l.locked_at), escape(&l.locked_with))));
+            out.push(md(format!(
+                "Locked at: {} with attest {}",
+                escape(&l.locked_at),
+                escape(&l.locked_with)
+            )));
         }
         None => out.push(md("Lock: none")),
     }
@@ -413,11 +475,7 @@ fn provenance(r: &Results) -> Vec<Value> {
 
 /// A fenced code block that no backtick run inside `text` can close.
 fn code_block(text: &str) -> String {
-    let longest = text
-        .split(|c| c != '`')
-        .map(str::len)
-        .max()
-        .unwrap_or(0);
+    let longest = text.split(|c| c != '`').map(str::len).max().unwrap_or(0);
     let fence = "`".repeat(longest.max(2) + 1);
     format!("{fence}\n{}\n{fence}", text.replace('\n', " "))
 }

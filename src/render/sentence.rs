@@ -64,13 +64,20 @@ pub fn effect(e: &EffectSize, confidence: f64) -> String {
         "cohen-d" => (sym("d"), two),
         "hedges-g" => (sym("g"), two),
         "d-z" => (format!("{}z", sym("d")), two),
-        "rank-biserial" => (format!("rank-biserial {}", sym("r")), |x| apa::bounded(x, 2)),
-        "probability-of-superiority" => ("probability of superiority".into(), |x| apa::bounded(x, 2)),
+        "rank-biserial" => (format!("rank-biserial {}", sym("r")), |x| {
+            apa::bounded(x, 2)
+        }),
+        "probability-of-superiority" => {
+            ("probability of superiority".into(), |x| apa::bounded(x, 2))
+        }
         other => (escape(other), two),
     };
     let mut out = format!("{name} = {}", fmt(e.value));
     if e.ci_low.is_some() || e.ci_high.is_some() {
-        out.push_str(&format!(", {}", apa::ci(confidence, e.ci_low, e.ci_high, fmt)));
+        out.push_str(&format!(
+            ", {}",
+            apa::ci(confidence, e.ci_low, e.ci_high, fmt)
+        ));
     }
     out
 }
@@ -97,6 +104,17 @@ pub fn correction_name(c: Correction) -> Option<&'static str> {
     }
 }
 
+/// The name of a correction method as a reader knows it.
+pub fn correction_method(c: Correction) -> Option<&'static str> {
+    match c {
+        Correction::None => None,
+        Correction::Bonferroni => Some("Bonferroni"),
+        Correction::Holm => Some("Holm's step-down method"),
+        Correction::Hochberg => Some("Hochberg's step-up method"),
+        Correction::FdrBh => Some("Benjamini–Hochberg false discovery rate"),
+    }
+}
+
 /// The p clause of a hypothesis: adjusted when a correction applies, with
 /// the sidedness when one-sided.
 pub fn p_of(h: &HypothesisResult, correction: Correction) -> String {
@@ -116,7 +134,13 @@ fn describe(g: Option<&GroupSummary>, rank: bool) -> String {
         format!(" ({} = {})", sym("Mdn"), two(g.median))
     } else {
         match g.sd {
-            Some(sd) => format!(" ({} = {}, {} = {})", sym("M"), two(g.mean), sym("SD"), two(sd)),
+            Some(sd) => format!(
+                " ({} = {}, {} = {})",
+                sym("M"),
+                two(g.mean),
+                sym("SD"),
+                two(sd)
+            ),
             None => format!(" ({} = {})", sym("M"), two(g.mean)),
         }
     }
@@ -138,7 +162,10 @@ pub fn one_sentence(h: &HypothesisResult, correction: Correction) -> String {
     let rank = is_rank(&h.method);
     let outcome = escape(&h.outcome_label);
     let (a, b) = (escape(&h.labels[0]), escape(&h.labels[1]));
-    let (da, db) = (describe(h.groups.first(), rank), describe(h.groups.get(1), rank));
+    let (da, db) = (
+        describe(h.groups.first(), rank),
+        describe(h.groups.get(1), rank),
+    );
     let rejected = h.decision == Decision::Reject;
     let higher = match h.alternative {
         Alternative::Greater => true,
@@ -163,12 +190,21 @@ pub fn one_sentence(h: &HypothesisResult, correction: Correction) -> String {
             } else if h.alternative == Alternative::TwoSided {
                 "did not differ detectably from".into()
             } else {
-                format!("was not shown to be {} than", word.trim_start_matches("tended to be "))
+                format!(
+                    "was not shown to be {} than",
+                    word.trim_start_matches("tended to be ")
+                )
             };
-            format!("{} in {a}{da} {verb} the reference value of {reference}", capitalised(&outcome))
+            format!(
+                "{} in {a}{da} {verb} the reference value of {reference}",
+                capitalised(&outcome)
+            )
         }
-        (_, true, _) => format!("{} was {word} {on_a}{da} than {on_b}{db}", capitalised(&outcome))
-            .replace("was tended", "tended"),
+        (_, true, _) => format!(
+            "{} was {word} {on_a}{da} than {on_b}{db}",
+            capitalised(&outcome)
+        )
+        .replace("was tended", "tended"),
         (_, false, Alternative::TwoSided) => {
             format!("The data did not show a difference in {outcome} between {a}{da} and {b}{db}")
         }
@@ -191,7 +227,11 @@ pub fn one_sentence(h: &HypothesisResult, correction: Correction) -> String {
 fn equivalence_sentence(h: &HypothesisResult, eq: &crate::results::EquivalenceResult) -> String {
     let outcome = escape(&h.outcome_label);
     let (a, b) = (escape(&h.labels[0]), escape(&h.labels[1]));
-    let u = h.units.as_deref().map(|u| format!(" {}", escape(u))).unwrap_or_default();
+    let u = h
+        .units
+        .as_deref()
+        .map(|u| format!(" {}", escape(u)))
+        .unwrap_or_default();
     let welch = h.method == "welch-t";
     let df = apa::df(eq.df, welch);
     let verdict = if h.decision == Decision::Reject {
