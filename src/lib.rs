@@ -11,6 +11,7 @@ pub mod error;
 pub mod lock;
 pub mod output;
 pub mod plan;
+pub mod render;
 pub mod results;
 pub mod stats;
 pub mod values;

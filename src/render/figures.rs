@@ -1,0 +1,534 @@
+//! The report's figures as small, deterministic SVG documents.
+//!
+//! Each figure answers one question and is titled by it. Figures are drawn
+//! with plotters' SVG backend from the values the pipeline kept for drawing
+//! (`HypothesisResult::plot` / `paired_plot`, already capped), so their size
+//! does not grow with n. Every SVG carries a `<title>` and a `<desc>` for
+//! screen readers. Colours come from the palette of Okabe & Ito (2008),
+//! "Color Universal Design", chosen because it stays distinguishable for
+//! the common forms of colour blindness. Jitter is a fixed low-discrepancy
+//! sequence, never random, so the same results give the same bytes.
+
+use crate::results::{HypothesisResult, PlotData};
+use crate::stats::dist::normal_quantile;
+use crate::stats::Alternative;
+use plotters::coord::Shift;
+use plotters::prelude::*;
+
+/// One rendered figure.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Figure {
+    /// Where the report places it: `groups`, `pairs`, `qq`, `differences`, `difference`.
+    pub role: &'static str,
+    /// File name, e.g. `h1-groups.svg`.
+    pub file: String,
+    /// The question it answers (the figure title).
+    pub title: String,
+    /// Short alternative text.
+    pub alt: String,
+    /// What is drawn, in a sentence or two (the figure note and `<desc>`).
+    pub desc: String,
+    /// The SVG document.
+    pub svg: String,
+}
+
+const BLUE: RGBColor = RGBColor(0x00, 0x72, 0xB2);
+const ORANGE: RGBColor = RGBColor(0xE6, 0x9F, 0x00);
+const VERMILLION: RGBColor = RGBColor(0xD5, 0x5E, 0x00);
+const GREY: RGBColor = RGBColor(0x55, 0x55, 0x55);
+const PALETTE: [RGBColor; 2] = [BLUE, ORANGE];
+
+/// A file-name stem for a hypothesis id: lowercase letters, digits and
+/// dashes; `h<n>` when nothing is left or the stem is taken.
+pub fn stem(id: &str, index: usize, used: &[String]) -> String {
+    let s: String = id
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() {
+                c.to_ascii_lowercase()
+            } else {
+                '-'
+            }
+        })
+        .collect();
+    let s = s.trim_matches('-').to_string();
+    if s.is_empty() || used.contains(&s) {
+        format!("h{}", index + 1)
+    } else {
+        s
+    }
+}
+
+/// The figures of one hypothesis, in the order the report shows them.
+pub fn for_hypothesis(h: &HypothesisResult, stem: &str) -> Vec<Figure> {
+    let mut out = Vec::new();
+    let sampled =
+        h.plot.iter().any(|p| p.sampled) || h.paired_plot.as_ref().is_some_and(|p| p.sampled);
+    let sample_note = if sampled {
+        " The points are an evenly spaced sample of the sorted values, not every value."
+    } else {
+        ""
+    };
+    let unit = h
+        .units
+        .as_deref()
+        .map(|u| format!(" ({u})"))
+        .unwrap_or_default();
+    let axis = format!("{}{unit}", h.outcome_label);
+    if h.design == "paired" {
+        if let Some(pp) = &h.paired_plot {
+            let desc = format!(
+                "Each line joins one unit's value in {} (left) to its value in {} (right).{}",
+                h.labels[0],
+                h.labels[1],
+                if pp.sampled {
+                    " The lines are a sample of all units."
+                } else {
+                    ""
+                }
+            );
+            out.push(make(
+                stem,
+                "pairs",
+                "Each unit, before and after",
+                desc,
+                |a| pairs(a, h, &axis),
+            ));
+        }
+    } else {
+        let desc = format!(
+            "Each dot is one value, spread sideways only to avoid overlap. The box spans the quartiles with the median as a line; the whiskers reach the smallest and largest values.{}{sample_note}",
+            if h.design == "one-sample" { " The dashed line marks the reference value." } else { "" }
+        );
+        out.push(make(stem, "groups", "Each group's values", desc, |a| {
+            groups(a, h, &axis)
+        }));
+    }
+    let qq_sets: Vec<&PlotData> = if h.design == "paired" {
+        h.plot.iter().filter(|p| p.label == "difference").collect()
+    } else {
+        h.plot.iter().collect()
+    };
+    if !qq_sets.is_empty() {
+        let desc = format!(
+            "Sample values against the values a normal distribution would give at the same ranks; points near the line mean the shape is close to normal. The line runs through the quartiles.{sample_note}"
+        );
+        let title = if h.design == "paired" {
+            "Normal Q–Q, the differences"
+        } else {
+            "Normal Q–Q, each group"
+        };
+        out.push(make(stem, "qq", title, desc, |a| qq(a, &qq_sets)));
+    }
+    if h.design == "paired" {
+        if let Some(d) = h
+            .plot
+            .iter()
+            .find(|p| p.label == "difference")
+            .or(h.plot.last())
+        {
+            let desc = format!(
+                "How often each size of difference ({} − {}) occurred, over all analysed units; the dashed line marks zero.",
+                h.labels[0], h.labels[1]
+            );
+            out.push(make(
+                stem,
+                "differences",
+                "Each unit's difference",
+                desc,
+                |a| histogram(a, d, &axis),
+            ));
+        }
+    }
+    let desc = difference_desc(h);
+    out.push(make(
+        stem,
+        "difference",
+        "The difference and its interval",
+        desc,
+        |a| difference(a, h),
+    ));
+    out
+}
+
+fn difference_desc(h: &HypothesisResult) -> String {
+    let e = &h.estimate;
+    let open = match h.alternative {
+        Alternative::TwoSided => "",
+        _ => " The interval is one-sided: its open side runs to the edge of the plot, marked by an arrow.",
+    };
+    let eq = if h.equivalence.is_some() {
+        " Dotted lines mark the equivalence bounds."
+    } else {
+        ""
+    };
+    format!(
+        "The {} (dot) with its {:.0}% confidence interval (bar); the dashed line marks no difference.{open}{eq}",
+        e.name,
+        e.confidence * 100.0
+    )
+}
+
+type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
+type DrawResult = Result<(), Box<dyn std::error::Error>>;
+
+fn make(
+    stem: &str,
+    role: &'static str,
+    title: &str,
+    desc: String,
+    draw: impl FnOnce(&Area) -> DrawResult,
+) -> Figure {
+    let size = if role == "qq" { (520, 280) } else { (520, 300) };
+    let mut buf = String::new();
+    let drawn = {
+        let root = SVGBackend::with_string(&mut buf, size).into_drawing_area();
+        let r = root
+            .fill(&WHITE)
+            .map_err(Into::into)
+            .and_then(|_| draw(&root));
+        r.and_then(|_| root.present().map_err(Into::into))
+    };
+    if drawn.is_err() {
+        buf = placeholder(size);
+    }
+    let file = format!("{stem}-{role}.svg");
+    let svg = label_svg(&buf, &format!("{stem}-{role}"), title, &desc);
+    Figure {
+        role,
+        file,
+        title: title.into(),
+        alt: format!("{title}: {}", desc.split(". ").next().unwrap_or("")),
+        desc,
+        svg,
+    }
+}
+
+fn placeholder(size: (u32, u32)) -> String {
+    format!(
+        "<svg width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} {1}\" xmlns=\"http://www.w3.org/2000/svg\">\n<text x=\"10\" y=\"20\" font-family=\"sans-serif\" font-size=\"12\">This figure could not be drawn for these values.</text>\n</svg>\n",
+        size.0, size.1
+    )
+}
+
+fn xml_escape(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+/// Puts `<title>` and `<desc>` first inside the `<svg>` element and marks
+/// it as an image labelled by them.
+fn label_svg(svg: &str, id: &str, title: &str, desc: &str) -> String {
+    let Some(end) = svg.find('>') else {
+        return svg.to_string();
+    };
+    let (open, rest) = svg.split_at(end);
+    format!(
+        "{open} role=\"img\" aria-labelledby=\"{id}-title {id}-desc\">\n<title id=\"{id}-title\">{}</title>\n<desc id=\"{id}-desc\">{}</desc>{}",
+        xml_escape(title),
+        xml_escape(desc),
+        &rest[1..]
+    )
+}
+
+fn finite(v: &[f64]) -> Vec<f64> {
+    v.iter().copied().filter(|x| x.is_finite()).collect()
+}
+
+/// A padded range around some values (never empty).
+fn span(values: impl IntoIterator<Item = f64>) -> (f64, f64) {
+    let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
+    for v in values.into_iter().filter(|v| v.is_finite()) {
+        lo = lo.min(v);
+        hi = hi.max(v);
+    }
+    if !lo.is_finite() {
+        return (-1.0, 1.0);
+    }
+    let pad = if hi > lo {
+        (hi - lo) * 0.08
+    } else {
+        lo.abs().max(1.0) * 0.1
+    };
+    (lo - pad, hi + pad)
+}
+
+fn jitter(i: usize) -> f64 {
+    ((i as f64 * 0.618_033_988_749_895).fract() - 0.5) * 0.36
+}
+
+fn groups(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
+    let sets = &h.plot;
+    let k = sets.len().max(1);
+    let mut all: Vec<f64> = sets.iter().flat_map(|p| finite(&p.points)).collect();
+    all.extend(h.groups.iter().flat_map(|g| [g.min, g.max]));
+    all.extend(h.reference);
+    let (lo, hi) = span(all);
+    let labels: Vec<String> = sets.iter().map(|p| p.label.clone()).collect();
+    let mut chart = ChartBuilder::on(area)
+        .margin(12)
+        .x_label_area_size(28)
+        .y_label_area_size(56)
+        .build_cartesian_2d(-0.5f64..(k as f64 - 0.5), lo..hi)?;
+    chart
+        .configure_mesh()
+        .disable_x_mesh()
+        .x_labels(k)
+        .x_label_formatter(&|x| {
+            let i = x.round();
+            if (x - i).abs() < 1e-6 && i >= 0.0 {
+                labels.get(i as usize).cloned().unwrap_or_default()
+            } else {
+                String::new()
+            }
+        })
+        .y_desc(axis)
+        .light_line_style(WHITE)
+        .draw()?;
+    for (gi, p) in sets.iter().enumerate() {
+        let x0 = gi as f64;
+        let colour = PALETTE[gi % 2];
+        if let Some(g) = h.groups.get(gi) {
+            let w = 0.28;
+            chart.draw_series(std::iter::once(Rectangle::new(
+                [(x0 - w, g.q1), (x0 + w, g.q3)],
+                GREY.stroke_width(1),
+            )))?;
+            chart.draw_series(std::iter::once(PathElement::new(
+                vec![(x0 - w, g.median), (x0 + w, g.median)],
+                GREY.stroke_width(2),
+            )))?;
+            chart.draw_series(std::iter::once(PathElement::new(
+                vec![(x0, g.q3), (x0, g.max)],
+                GREY.stroke_width(1),
+            )))?;
+            chart.draw_series(std::iter::once(PathElement::new(
+                vec![(x0, g.q1), (x0, g.min)],
+                GREY.stroke_width(1),
+            )))?;
+        }
+        chart.draw_series(
+            finite(&p.points)
+                .into_iter()
+                .enumerate()
+                .map(|(i, v)| Circle::new((x0 + jitter(i), v), 3, colour.mix(0.7).filled())),
+        )?;
+    }
+    if let Some(r) = h.reference {
+        chart.draw_series(dashed((-0.5, r), (k as f64 - 0.5, r)))?;
+    }
+    Ok(())
+}
+
+/// A dashed line drawn as short segments (plotters has no dash style).
+fn dashed(from: (f64, f64), to: (f64, f64)) -> Vec<PathElement<(f64, f64)>> {
+    let n = 40;
+    (0..n)
+        .step_by(2)
+        .map(|i| {
+            let t0 = i as f64 / n as f64;
+            let t1 = (i + 1) as f64 / n as f64;
+            let at = |t: f64| (from.0 + (to.0 - from.0) * t, from.1 + (to.1 - from.1) * t);
+            PathElement::new(vec![at(t0), at(t1)], GREY.stroke_width(1))
+        })
+        .collect()
+}
+
+fn qq(area: &Area, sets: &[&PlotData]) -> DrawResult {
+    let panels = area.split_evenly((1, sets.len().max(1)));
+    for (gi, (panel, p)) in panels.iter().zip(sets).enumerate() {
+        let ys = finite(&p.points);
+        let n = ys.len();
+        let mut sorted = ys.clone();
+        sorted.sort_by(f64::total_cmp);
+        let xs: Vec<f64> = (0..n)
+            .map(|i| normal_quantile((i as f64 + 0.5) / n as f64))
+            .collect();
+        let (xlo, xhi) = span(xs.iter().copied().chain([-1.0, 1.0]));
+        let (ylo, yhi) = span(sorted.iter().copied());
+        let mut chart = ChartBuilder::on(panel)
+            .caption(&p.label, ("sans-serif", 14))
+            .margin(10)
+            .x_label_area_size(30)
+            .y_label_area_size(48)
+            .build_cartesian_2d(xlo..xhi, ylo..yhi)?;
+        chart
+            .configure_mesh()
+            .x_desc("normal quantile")
+            .x_labels(5)
+            .y_labels(5)
+            .light_line_style(WHITE)
+            .draw()?;
+        if n >= 2 {
+            // Line through the sample's quartiles (common practice).
+            let q = |f: f64| {
+                let pos = f * (n - 1) as f64;
+                let (i, frac) = (pos.floor() as usize, pos.fract());
+                sorted[i] + (sorted[(i + 1).min(n - 1)] - sorted[i]) * frac
+            };
+            let (z1, z3) = (normal_quantile(0.25), normal_quantile(0.75));
+            let slope = (q(0.75) - q(0.25)) / (z3 - z1);
+            let at = |z: f64| q(0.25) + slope * (z - z1);
+            chart.draw_series(std::iter::once(PathElement::new(
+                vec![(xlo, at(xlo)), (xhi, at(xhi))],
+                GREY.stroke_width(1),
+            )))?;
+        }
+        chart.draw_series(
+            xs.iter()
+                .zip(&sorted)
+                .map(|(&x, &y)| Circle::new((x, y), 3, PALETTE[gi % 2].mix(0.8).filled())),
+        )?;
+    }
+    Ok(())
+}
+
+fn difference(area: &Area, h: &HypothesisResult) -> DrawResult {
+    let e = &h.estimate;
+    let mut vals = vec![0.0, e.value];
+    vals.extend(e.ci_low);
+    vals.extend(e.ci_high);
+    if let Some(eq) = &h.equivalence {
+        vals.extend([eq.low, eq.high, eq.ci_low, eq.ci_high]);
+    }
+    let (lo, hi) = span(vals);
+    let unit = h
+        .units
+        .as_deref()
+        .map(|u| format!(" ({u})"))
+        .unwrap_or_default();
+    let mut chart = ChartBuilder::on(area)
+        .margin(14)
+        .x_label_area_size(34)
+        .y_label_area_size(10)
+        .build_cartesian_2d(lo..hi, 0f64..1f64)?;
+    chart
+        .configure_mesh()
+        .disable_y_mesh()
+        .disable_y_axis()
+        .x_desc(format!(
+            "{}{unit}, {} − {}",
+            e.name, h.labels[0], h.labels[1]
+        ))
+        .light_line_style(WHITE)
+        .draw()?;
+    chart.draw_series(dashed((0.0, 0.0), (0.0, 1.0)))?;
+    if let Some(eq) = &h.equivalence {
+        for b in [eq.low, eq.high] {
+            chart.draw_series((0..20).step_by(3).map(|i| {
+                let y = i as f64 / 20.0;
+                PathElement::new(vec![(b, y), (b, y + 0.04)], VERMILLION.stroke_width(2))
+            }))?;
+        }
+    }
+    let y = 0.5;
+    let left = e.ci_low.unwrap_or(lo);
+    let right = e.ci_high.unwrap_or(hi);
+    chart.draw_series(std::iter::once(PathElement::new(
+        vec![(left, y), (right, y)],
+        BLUE.stroke_width(3),
+    )))?;
+    let dx = (hi - lo) * 0.025;
+    for (bound, edge, dir) in [(e.ci_low, lo, -1.0), (e.ci_high, hi, 1.0)] {
+        match bound {
+            Some(b) => chart.draw_series(std::iter::once(PathElement::new(
+                vec![(b, y - 0.08), (b, y + 0.08)],
+                BLUE.stroke_width(3),
+            )))?,
+            None => chart.draw_series(std::iter::once(Polygon::new(
+                vec![
+                    (edge, y),
+                    (edge - dir * dx, y - 0.07),
+                    (edge - dir * dx, y + 0.07),
+                ],
+                BLUE.filled(),
+            )))?,
+        };
+    }
+    chart.draw_series(std::iter::once(Circle::new((e.value, y), 6, BLUE.filled())))?;
+    Ok(())
+}
+
+fn pairs(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
+    let Some(pp) = &h.paired_plot else {
+        return Ok(());
+    };
+    let pts: Vec<[f64; 2]> = pp
+        .pairs
+        .iter()
+        .copied()
+        .filter(|p| p[0].is_finite() && p[1].is_finite())
+        .collect();
+    let (lo, hi) = span(pts.iter().flat_map(|p| [p[0], p[1]]));
+    let labels = h.labels.clone();
+    let mut chart = ChartBuilder::on(area)
+        .margin(12)
+        .x_label_area_size(28)
+        .y_label_area_size(56)
+        .build_cartesian_2d(-0.3f64..1.3f64, lo..hi)?;
+    chart
+        .configure_mesh()
+        .disable_x_mesh()
+        .x_labels(2)
+        .x_label_formatter(&|x| {
+            if x.abs() < 1e-6 {
+                labels[0].clone()
+            } else if (x - 1.0).abs() < 1e-6 {
+                labels[1].clone()
+            } else {
+                String::new()
+            }
+        })
+        .y_desc(axis)
+        .light_line_style(WHITE)
+        .draw()?;
+    chart.draw_series(pts.iter().map(|p| {
+        let colour = if p[1] > p[0] { ORANGE } else { BLUE };
+        PathElement::new(
+            vec![(0.0, p[0]), (1.0, p[1])],
+            colour.mix(0.6).stroke_width(1),
+        )
+    }))?;
+    chart.draw_series(pts.iter().flat_map(|p| {
+        [
+            Circle::new((0.0, p[0]), 2, GREY.filled()),
+            Circle::new((1.0, p[1]), 2, GREY.filled()),
+        ]
+    }))?;
+    Ok(())
+}
+
+fn histogram(area: &Area, d: &PlotData, axis: &str) -> DrawResult {
+    let edges = finite(&d.bin_edges);
+    let valid = edges.len() == d.bin_counts.len() + 1 && !d.bin_counts.is_empty();
+    let (lo, hi) = if valid {
+        span(edges.iter().copied().chain([0.0]))
+    } else {
+        span(finite(&d.points).into_iter().chain([0.0]))
+    };
+    let top = d.bin_counts.iter().copied().max().unwrap_or(1).max(1) as f64 * 1.1;
+    let mut chart = ChartBuilder::on(area)
+        .margin(12)
+        .x_label_area_size(34)
+        .y_label_area_size(44)
+        .build_cartesian_2d(lo..hi, 0f64..top)?;
+    chart
+        .configure_mesh()
+        .disable_x_mesh()
+        .x_desc(format!("difference in {axis}"))
+        .y_desc("units")
+        .light_line_style(WHITE)
+        .draw()?;
+    if valid {
+        chart.draw_series(d.bin_counts.iter().enumerate().map(|(i, &c)| {
+            Rectangle::new(
+                [(edges[i], 0.0), (edges[i + 1], c as f64)],
+                BLUE.mix(0.6).filled(),
+            )
+        }))?;
+    }
+    chart.draw_series(dashed((0.0, 0.0), (0.0, top)))?;
+    Ok(())
+}

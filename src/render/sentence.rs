@@ -1,0 +1,259 @@
+//! Words for methods, statistics and effects, and the one APA-style
+//! sentence that sums up each hypothesis ("In one sentence").
+//!
+//! Everything returned is Markdown; text from the plan (labels, outcome
+//! names, units) is escaped here, so the result can be placed in a
+//! template as it is. The numbers come from [`super::apa`].
+
+use super::apa::{self, sym, two};
+use super::markdown::escape;
+use crate::results::{Decision, EffectSize, Estimate, GroupSummary, HypothesisResult, TestResult};
+use crate::stats::multiplicity::Correction;
+use crate::stats::Alternative;
+
+/// The plain name of a method as analysis files spell it.
+pub fn method_name(method: &str) -> String {
+    match method {
+        "student-t" => "Student's t-test".into(),
+        "welch-t" => "Welch's t-test".into(),
+        "mann-whitney" => "Mann–Whitney U test".into(),
+        "paired-t" => "paired t-test".into(),
+        "wilcoxon-signed-rank" => "Wilcoxon signed-rank test".into(),
+        "one-sample-t" => "one-sample t-test".into(),
+        "checked" => "chosen by the checks (`checked`)".into(),
+        other => escape(other),
+    }
+}
+
+/// Whether a method is a rank test.
+pub fn is_rank(method: &str) -> bool {
+    matches!(method, "mann-whitney" | "wilcoxon-signed-rank")
+}
+
+/// The statistic with its df: `Welch's *t*(97.31) = 2.71`, `*t*(48) = 2.71`,
+/// `Mann–Whitney *U* = 312, *z* = 2.31`, `Wilcoxon *W*+ = 123`.
+pub fn statistic(test: &TestResult) -> String {
+    let welch = test.method == "welch-t";
+    match test.method.as_str() {
+        "mann-whitney" | "wilcoxon-signed-rank" => {
+            let (who, s) = if test.method == "mann-whitney" {
+                ("Mann–Whitney", sym("U"))
+            } else {
+                ("Wilcoxon", format!("{}+", sym("W")))
+            };
+            let mut out = format!("{who} {s} = {}", apa::rank_statistic(test.statistic));
+            if let Some(z) = test.z {
+                out.push_str(&format!(", {} = {}", sym("z"), two(z)));
+            }
+            out
+        }
+        _ => {
+            let df = test
+                .df
+                .map(|d| format!("({})", apa::df(d, welch)))
+                .unwrap_or_default();
+            let who = if welch { "Welch's " } else { "" };
+            format!("{who}{}{df} = {}", sym("t"), two(test.statistic))
+        }
+    }
+}
+
+/// An effect size with its symbol and (when computed) its interval.
+pub fn effect(e: &EffectSize, confidence: f64) -> String {
+    let (name, fmt): (String, fn(f64) -> String) = match e.name.as_str() {
+        "cohen-d" => (sym("d"), two),
+        "hedges-g" => (sym("g"), two),
+        "d-z" => (format!("{}z", sym("d")), two),
+        "rank-biserial" => (format!("rank-biserial {}", sym("r")), |x| {
+            apa::bounded(x, 2)
+        }),
+        "probability-of-superiority" => {
+            ("probability of superiority".into(), |x| apa::bounded(x, 2))
+        }
+        other => (escape(other), two),
+    };
+    let mut out = format!("{name} = {}", fmt(e.value));
+    if e.ci_low.is_some() || e.ci_high.is_some() {
+        out.push_str(&format!(
+            ", {}",
+            apa::ci(confidence, e.ci_low, e.ci_high, fmt)
+        ));
+    }
+    out
+}
+
+/// An estimate of the difference with its interval and units.
+pub fn estimate(e: &Estimate, units: Option<&str>) -> String {
+    let u = units.map(|u| format!(" {}", escape(u))).unwrap_or_default();
+    format!(
+        "{} = {}{u}, {}",
+        escape(&e.name),
+        two(e.value),
+        apa::ci(e.confidence, e.ci_low, e.ci_high, two)
+    )
+}
+
+/// What a correction is called after an adjusted p.
+pub fn correction_name(c: Correction) -> Option<&'static str> {
+    match c {
+        Correction::None => None,
+        Correction::Bonferroni => Some("Bonferroni-adjusted"),
+        Correction::Holm => Some("Holm-adjusted"),
+        Correction::Hochberg => Some("Hochberg-adjusted"),
+        Correction::FdrBh => Some("Benjamini–Hochberg-adjusted"),
+    }
+}
+
+/// The name of a correction method as a reader knows it.
+pub fn correction_method(c: Correction) -> Option<&'static str> {
+    match c {
+        Correction::None => None,
+        Correction::Bonferroni => Some("Bonferroni"),
+        Correction::Holm => Some("Holm's step-down method"),
+        Correction::Hochberg => Some("Hochberg's step-up method"),
+        Correction::FdrBh => Some("Benjamini–Hochberg false discovery rate"),
+    }
+}
+
+/// The p clause of a hypothesis: adjusted when a correction applies, with
+/// the sidedness when one-sided.
+pub fn p_of(h: &HypothesisResult, correction: Correction) -> String {
+    let mut out = match correction_name(correction) {
+        Some(name) => format!("{} ({name})", apa::p_clause(h.p_adjusted)),
+        None => apa::p_clause(h.p),
+    };
+    if let Some(s) = apa::sidedness(h.alternative != Alternative::TwoSided) {
+        out.push_str(&format!(", {s}"));
+    }
+    out
+}
+
+fn describe(g: Option<&GroupSummary>, rank: bool) -> String {
+    let Some(g) = g else { return String::new() };
+    if rank {
+        format!(" ({} = {})", sym("Mdn"), two(g.median))
+    } else {
+        match g.sd {
+            Some(sd) => format!(
+                " ({} = {}, {} = {})",
+                sym("M"),
+                two(g.mean),
+                sym("SD"),
+                two(sd)
+            ),
+            None => format!(" ({} = {})", sym("M"), two(g.mean)),
+        }
+    }
+}
+
+fn capitalised(s: &str) -> String {
+    let mut c = s.chars();
+    match c.next() {
+        Some(f) => f.to_uppercase().chain(c).collect(),
+        None => String::new(),
+    }
+}
+
+/// The copyable result sentence for one hypothesis.
+pub fn one_sentence(h: &HypothesisResult, correction: Correction) -> String {
+    if let Some(eq) = &h.equivalence {
+        return equivalence_sentence(h, eq);
+    }
+    let rank = is_rank(&h.method);
+    let outcome = escape(&h.outcome_label);
+    let (a, b) = (escape(&h.labels[0]), escape(&h.labels[1]));
+    let (da, db) = (
+        describe(h.groups.first(), rank),
+        describe(h.groups.get(1), rank),
+    );
+    let rejected = h.decision == Decision::Reject;
+    let higher = match h.alternative {
+        Alternative::Greater => true,
+        Alternative::Less => false,
+        Alternative::TwoSided => h.estimate.value >= 0.0,
+    };
+    let word = match (rank, higher) {
+        (false, true) => "higher",
+        (false, false) => "lower",
+        (true, true) => "tended to be higher",
+        (true, false) => "tended to be lower",
+    };
+    let (on_a, on_b) = match h.design.as_str() {
+        "paired" => (format!("in {a}"), format!("in {b}")),
+        _ => (format!("for {a}"), format!("for {b}")),
+    };
+    let lead = match (h.design.as_str(), rejected, h.alternative) {
+        ("one-sample", _, _) => {
+            let reference = h.reference.map(two).unwrap_or_default();
+            let verb = if rejected {
+                format!("was {word} than")
+            } else if h.alternative == Alternative::TwoSided {
+                "did not differ detectably from".into()
+            } else {
+                format!(
+                    "was not shown to be {} than",
+                    word.trim_start_matches("tended to be ")
+                )
+            };
+            format!(
+                "{} in {a}{da} {verb} the reference value of {reference}",
+                capitalised(&outcome)
+            )
+        }
+        (_, true, _) => format!(
+            "{} was {word} {on_a}{da} than {on_b}{db}",
+            capitalised(&outcome)
+        )
+        .replace("was tended", "tended"),
+        (_, false, Alternative::TwoSided) => {
+            format!("The data did not show a difference in {outcome} between {a}{da} and {b}{db}")
+        }
+        (_, false, _) => format!(
+            "{} was not shown to be {} {on_a}{da} than {on_b}{db}",
+            capitalised(&outcome),
+            word.trim_start_matches("tended to be ")
+        ),
+    };
+    let conf = h.estimate.confidence;
+    format!(
+        "{lead}, {}, {}; {}; {}.",
+        statistic(&h.test),
+        p_of(h, correction),
+        estimate(&h.estimate, h.units.as_deref()),
+        effect(&h.effect, conf)
+    )
+}
+
+fn equivalence_sentence(h: &HypothesisResult, eq: &crate::results::EquivalenceResult) -> String {
+    let outcome = escape(&h.outcome_label);
+    let (a, b) = (escape(&h.labels[0]), escape(&h.labels[1]));
+    let u = h
+        .units
+        .as_deref()
+        .map(|u| format!(" {}", escape(u)))
+        .unwrap_or_default();
+    let welch = h.method == "welch-t";
+    let df = apa::df(eq.df, welch);
+    let verdict = if h.decision == Decision::Reject {
+        "was equivalent within the bounds"
+    } else {
+        "was not shown equivalent within the bounds"
+    };
+    let between = if h.design == "one-sample" {
+        format!("{a} and the reference value")
+    } else {
+        format!("{a} and {b}")
+    };
+    format!(
+        "The difference in {outcome} between {between} {verdict} of {} and {}{u} (two one-sided tests: {t}({df}) = {}, {}; {t}({df}) = {}, {}); difference = {}{u}, {}.",
+        two(eq.low),
+        two(eq.high),
+        two(eq.t_lower),
+        apa::p_clause(eq.p_lower),
+        two(eq.t_upper),
+        apa::p_clause(eq.p_upper),
+        two(h.estimate.value),
+        apa::ci(eq.ci_level, Some(eq.ci_low), Some(eq.ci_high), two),
+        t = sym("t"),
+    )
+}

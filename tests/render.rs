@@ -1,0 +1,569 @@
+//! Rendering tests: escaping, self-containment, template override,
+//! determinism, and snapshots of the report for a hand-built result.
+//!
+//! The scenario is invented: a community garden compares tomato yield per
+//! plant under drip lines and hand watering (independent groups), and the
+//! same volunteers' weekly hours before and after a tool library opened
+//! (paired). Every number below is hand-written for the test, not produced
+//! by attest's statistics code; renderers only format them.
+
+use attest::plan::{
+    Comparison, DataFormat, DataSpec, Design, Deviation, ExcludeKind, ExcludeRule, Hypothesis,
+    Method, Plan,
+};
+use attest::render::{render_plan, render_report};
+use attest::results::*;
+use attest::stats::multiplicity::Correction;
+use attest::stats::{Alternative, PMethod};
+
+fn summary(label: &str, n: usize, mean: f64, sd: f64, q: [f64; 5]) -> GroupSummary {
+    GroupSummary {
+        label: label.into(),
+        n,
+        mean,
+        sd: Some(sd),
+        se: Some(sd / (n as f64).sqrt()),
+        median: q[2],
+        q1: q[1],
+        q3: q[3],
+        min: q[0],
+        max: q[4],
+        skewness: Some(0.21),
+        excess_kurtosis: Some(-0.4),
+        mean_ci: Some([mean - 0.5, mean + 0.5]),
+    }
+}
+
+fn plot(label: &str, points: &[f64]) -> PlotData {
+    PlotData {
+        label: label.into(),
+        points: points.to_vec(),
+        sampled: false,
+        bin_edges: vec![-2.0, -1.0, 0.0, 1.0, 2.0, 3.0],
+        bin_counts: vec![1, 3, 4, 5, 2],
+    }
+}
+
+fn plan() -> Plan {
+    Plan {
+        attest: 1,
+        title: "Watering and yield in the Elm Street garden".into(),
+        authors: vec!["R. Okonkwo".into(), "L. Marchetti".into()],
+        summary: Some("Plots were assigned to drip lines or hand watering by lot in April.\n\nVolunteer hours come from the sign-in sheet.".into()),
+        alpha: 0.05,
+        confidence: 0.95,
+        correction: Correction::Holm,
+        seed: 20261101,
+        check_alpha: 0.05,
+        data: DataSpec {
+            path: "garden.csv".into(),
+            format: DataFormat::Delimited,
+            delimiter: ',',
+            decimal: '.',
+            missing: vec!["".into(), "NA".into()],
+            sheet: None,
+        },
+        exclude: vec![ExcludeRule {
+            reason: "plants lost to blight before fruiting".into(),
+            column: "status".into(),
+            rule: ExcludeKind::Values { values: vec!["blight".into()] },
+        }],
+        hypotheses: vec![
+            Hypothesis {
+                id: "H1".into(),
+                claim: "Drip-watered plants yield more fruit than hand-watered plants".into(),
+                design: Design::Independent,
+                outcome: Some("yield_kg".into()),
+                comparison: Comparison::Groups {
+                    group: "watering".into(),
+                    levels: ["drip".into(), "hand".into()],
+                },
+                alternative: Alternative::Greater,
+                method: Method::Checked,
+                equivalence: None,
+                label: Some("fruit per plant".into()),
+                units: Some("kg".into()),
+                robustness: true,
+            },
+            Hypothesis {
+                id: "H2".into(),
+                claim: "Volunteer hours changed after the tool library opened".into(),
+                design: Design::Paired,
+                outcome: None,
+                comparison: Comparison::PairedColumns {
+                    first: "hours_after".into(),
+                    second: "hours_before".into(),
+                },
+                alternative: Alternative::TwoSided,
+                method: Method::WilcoxonSignedRank,
+                equivalence: None,
+                label: Some("weekly hours".into()),
+                units: Some("h".into()),
+                robustness: false,
+            },
+        ],
+    }
+}
+
+fn h1() -> HypothesisResult {
+    let estimate = Estimate {
+        name: "mean difference".into(),
+        value: 0.62,
+        ci_low: Some(0.19),
+        ci_high: None,
+        confidence: 0.95,
+    };
+    let effect = EffectSize {
+        name: "cohen-d".into(),
+        value: 0.58,
+        ci_low: Some(0.18),
+        ci_high: None,
+    };
+    let test = TestResult {
+        method: "welch-t".into(),
+        statistic_name: "t".into(),
+        statistic: 2.41,
+        df: Some(41.37),
+        z: None,
+        p: 0.0103,
+        p_method: None,
+        estimate: estimate.clone(),
+        effects: vec![
+            effect.clone(),
+            EffectSize {
+                name: "hedges-g".into(),
+                value: 0.57,
+                ci_low: Some(0.17),
+                ci_high: None,
+            },
+        ],
+        zeros_dropped: None,
+    };
+    HypothesisResult {
+        id: "H1".into(),
+        claim: "Drip-watered plants yield more fruit than hand-watered plants".into(),
+        design: "independent".into(),
+        method_planned: "checked".into(),
+        method: "welch-t".into(),
+        alternative: Alternative::Greater,
+        outcome_label: "fruit per plant".into(),
+        units: Some("kg".into()),
+        labels: ["drip".into(), "hand".into()],
+        reference: None,
+        groups: vec![
+            summary("drip", 24, 4.87, 0.81, [3.2, 4.3, 4.9, 5.4, 6.6]),
+            summary("hand", 23, 4.25, 1.12, [2.1, 3.5, 4.2, 5.0, 6.4]),
+        ],
+        statistic: 2.41,
+        df: Some(41.37),
+        p: 0.0103,
+        p_adjusted: 0.0206,
+        p_method: None,
+        estimate,
+        effect,
+        decision: Decision::Reject,
+        test,
+        checks: Checks {
+            check_alpha: 0.05,
+            normality: vec![
+                NormalityCheck {
+                    label: "drip".into(),
+                    n: 24,
+                    w: Some(0.967),
+                    p: Some(0.584),
+                    rejected: Some(false),
+                    not_run: None,
+                },
+                NormalityCheck {
+                    label: "hand".into(),
+                    n: 23,
+                    w: Some(0.951),
+                    p: Some(0.307),
+                    rejected: Some(false),
+                    not_run: None,
+                },
+            ],
+            spread: vec![
+                SpreadCheck {
+                    method: "brown-forsythe".into(),
+                    f: Some(4.62),
+                    df1: Some(1.0),
+                    df2: Some(45.0),
+                    p: Some(0.037),
+                    rejected: Some(true),
+                    not_run: None,
+                },
+                SpreadCheck {
+                    method: "levene".into(),
+                    f: Some(5.08),
+                    df1: Some(1.0),
+                    df2: Some(45.0),
+                    p: Some(0.029),
+                    rejected: Some(true),
+                    not_run: None,
+                },
+            ],
+            branch: Some(Branch::NormalUnequalSpread),
+        },
+        robustness: vec![TestResult {
+            method: "mann-whitney".into(),
+            statistic_name: "U".into(),
+            statistic: 371.5,
+            df: None,
+            z: Some(2.08),
+            p: 0.0188,
+            p_method: Some(PMethod::NormalApproximation),
+            estimate: Estimate {
+                name: "Hodges–Lehmann shift".into(),
+                value: 0.6,
+                ci_low: Some(0.1),
+                ci_high: None,
+                confidence: 0.95,
+            },
+            effects: vec![EffectSize {
+                name: "rank-biserial".into(),
+                value: 0.35,
+                ci_low: Some(0.06),
+                ci_high: None,
+            }],
+            zeros_dropped: None,
+        }],
+        equivalence: None,
+        rows: RowFlow {
+            read: [26, 24],
+            other_levels: 2,
+            rules: vec![RuleStep {
+                reason: "plants lost to blight before fruiting".into(),
+                first: 2,
+                second: 0,
+                other: 0,
+            }],
+            missing: [0, 1],
+            incomplete_pairs: 0,
+            analysed: [24, 23],
+        },
+        plot: vec![
+            plot(
+                "drip",
+                &[3.2, 4.1, 4.3, 4.6, 4.8, 4.9, 5.0, 5.2, 5.4, 5.9, 6.6],
+            ),
+            plot("hand", &[2.1, 3.0, 3.5, 3.9, 4.2, 4.4, 4.8, 5.0, 5.6, 6.4]),
+        ],
+        paired_plot: None,
+    }
+}
+
+fn h2() -> HypothesisResult {
+    let estimate = Estimate {
+        name: "Hodges–Lehmann shift".into(),
+        value: 0.75,
+        ci_low: Some(-0.25),
+        ci_high: Some(1.5),
+        confidence: 0.95,
+    };
+    let effect = EffectSize {
+        name: "rank-biserial".into(),
+        value: 0.29,
+        ci_low: Some(-0.12),
+        ci_high: Some(0.61),
+    };
+    let test = TestResult {
+        method: "wilcoxon-signed-rank".into(),
+        statistic_name: "W+".into(),
+        statistic: 118.0,
+        df: None,
+        z: None,
+        p: 0.214,
+        p_method: Some(PMethod::Exact),
+        estimate: estimate.clone(),
+        effects: vec![effect.clone()],
+        zeros_dropped: Some(2),
+    };
+    HypothesisResult {
+        id: "H2".into(),
+        claim: "Volunteer hours changed after the tool library opened".into(),
+        design: "paired".into(),
+        method_planned: "wilcoxon-signed-rank".into(),
+        method: "wilcoxon-signed-rank".into(),
+        alternative: Alternative::TwoSided,
+        outcome_label: "weekly hours".into(),
+        units: Some("h".into()),
+        labels: ["hours_after".into(), "hours_before".into()],
+        reference: None,
+        groups: vec![
+            summary("hours_after", 18, 4.9, 2.1, [1.0, 3.0, 5.0, 6.5, 9.0]),
+            summary("hours_before", 18, 4.3, 1.9, [1.0, 3.0, 4.0, 5.5, 8.0]),
+            summary("difference", 18, 0.6, 1.4, [-2.0, 0.0, 0.5, 1.5, 3.0]),
+        ],
+        statistic: 118.0,
+        df: None,
+        p: 0.214,
+        p_adjusted: 0.214,
+        p_method: Some(PMethod::Exact),
+        estimate,
+        effect,
+        decision: Decision::Retain,
+        test,
+        checks: Checks {
+            check_alpha: 0.05,
+            normality: vec![NormalityCheck {
+                label: "differences".into(),
+                n: 18,
+                w: Some(0.902),
+                p: Some(0.061),
+                rejected: Some(false),
+                not_run: None,
+            }],
+            spread: vec![],
+            branch: None,
+        },
+        robustness: vec![],
+        equivalence: None,
+        rows: RowFlow {
+            read: [20, 20],
+            other_levels: 0,
+            rules: vec![],
+            missing: [1, 1],
+            incomplete_pairs: 1,
+            analysed: [18, 18],
+        },
+        plot: vec![
+            plot("hours_after", &[1.0, 3.0, 4.0, 5.0, 6.0, 9.0]),
+            plot("hours_before", &[1.0, 3.0, 4.0, 4.5, 5.5, 8.0]),
+            plot("difference", &[-2.0, -1.0, 0.0, 0.5, 1.0, 1.5, 3.0]),
+        ],
+        paired_plot: Some(PairedPlot {
+            pairs: vec![
+                [5.0, 4.0],
+                [3.0, 3.0],
+                [6.0, 4.5],
+                [1.0, 2.0],
+                [9.0, 8.0],
+                [4.0, 5.5],
+            ],
+            sampled: false,
+        }),
+    }
+}
+
+fn scenario() -> Results {
+    Results {
+        tool: "attest".into(),
+        version: "0.1.0".into(),
+        plan_sha256: "3f1c0d6e9b2a4c8d7e6f5a4b3c2d1e0f9a8b7c6d5e4f3a2b1c0d9e8f7a6b5c4d".into(),
+        lock: LockState::AsLocked,
+        lock_record: Some(LockRecord {
+            sha256: "a9b8c7d6e5f4a3b2c1d0e9f8a7b6c5d4e3f2a1b0c9d8e7f6a5b4c3d2e1f0a9b8".into(),
+            locked_at: "2026-04-02T08:30:00Z".into(),
+            locked_with: "0.1.0".into(),
+            plan_sha256: "3f1c0d6e9b2a4c8d7e6f5a4b3c2d1e0f9a8b7c6d5e4f3a2b1c0d9e8f7a6b5c4d".into(),
+            data_existed: false,
+            data_sha256: None,
+            intact: true,
+        }),
+        changes: vec![],
+        deviations: vec![],
+        plan: plan(),
+        data: DataRecord {
+            path: "garden.csv".into(),
+            sha256: "0d1e2f3a4b5c6d7e8f9a0b1c2d3e4f5a6b7c8d9e0f1a2b3c4d5e6f7a8b9c0d1e".into(),
+            rows: 70,
+            outside_plan_folder: false,
+        },
+        hypotheses: vec![h1(), h2()],
+        command: "attest run garden.toml".into(),
+        analysis_file: "garden.toml".into(),
+    }
+}
+
+fn lock_of(r: &Results) -> attest::lock::LockFile {
+    attest::lock::LockFile {
+        lock_format: 1,
+        tool: "attest".into(),
+        version: "0.1.0".into(),
+        locked_at: "2026-04-02T08:30:00Z".into(),
+        analysis_file: "garden.toml".into(),
+        plan_sha256: r.plan_sha256.clone(),
+        plan: r.plan.clone(),
+        data: attest::lock::LockedData {
+            path: "garden.csv".into(),
+            existed: false,
+            sha256: None,
+        },
+        content_sha256: "a9b8c7d6e5f4a3b2c1d0e9f8a7b6c5d4e3f2a1b0c9d8e7f6a5b4c3d2e1f0a9b8".into(),
+    }
+}
+
+/// Whether the HTML refers to anything outside itself.
+fn external_references(html: &str) -> Vec<&'static str> {
+    [
+        "http://",
+        "https://",
+        "<script",
+        "<link",
+        "<iframe",
+        "<img",
+        "@import",
+        "url(",
+        "src=",
+        "href=\"//",
+    ]
+    .into_iter()
+    .filter(|needle| html.to_ascii_lowercase().contains(needle))
+    .collect()
+}
+
+#[test]
+fn html_is_self_contained() {
+    let out = render_report(&scenario(), None).unwrap();
+    assert_eq!(external_references(&out.report_html), Vec::<&str>::new());
+    assert!(
+        out.report_html.matches("<svg").count() >= 5,
+        "figures are inline"
+    );
+    let plan = render_plan(&lock_of(&scenario()), None).unwrap();
+    assert_eq!(external_references(&plan.plan_html), Vec::<&str>::new());
+}
+
+#[test]
+fn script_labels_and_html_claims_show_as_text() {
+    let mut r = scenario();
+    let evil = "<script>alert(1)</script>";
+    r.hypotheses[0].labels[0] = evil.into();
+    r.hypotheses[0].groups[0].label = evil.into();
+    r.hypotheses[0].plot[0].label = evil.into();
+    r.hypotheses[0].claim =
+        "Drip <b onmouseover=\"x()\">wins</b> *really* [link](javascript:x)".into();
+    r.plan.title = "<img src=x onerror=alert(1)>".into();
+    let out = render_report(&r, None).unwrap();
+    let html = &out.report_html;
+    assert!(!html.contains("<script"), "a label became markup");
+    assert!(!html.contains("<b onmouseover"), "a claim became markup");
+    assert!(!html.contains("<img"), "the title became markup");
+    assert!(!html.contains("href=\"javascript"), "a claim became a link");
+    assert!(
+        html.contains("&lt;script&gt;alert(1)&lt;/script&gt;"),
+        "the label is shown"
+    );
+    assert!(
+        html.contains("*really* [link](javascript:x)"),
+        "the claim is shown as written"
+    );
+    for (_, svg) in &out.figures {
+        assert!(
+            !svg.contains("<script"),
+            "an SVG carries the label as markup"
+        );
+    }
+    let md = &out.report_md;
+    assert!(
+        md.contains("\\<script\\>alert(1)\\</script\\>"),
+        "Markdown escapes the label"
+    );
+}
+
+#[test]
+fn a_user_template_overrides_and_the_rest_fall_back() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("report.md.j2"),
+        "{% import \"macros.md.j2\" as m %}# Garden notes: {{ title }}\n{% for g in glance %}{{ g.id }} {{ g.verdict }}\n{% endfor %}",
+    )
+    .unwrap();
+    let out = render_report(&scenario(), Some(dir.path())).unwrap();
+    assert_eq!(
+        out.report_md,
+        "# Garden notes: Watering and yield in the Elm Street garden\nH1 supported\nH2 not supported\n"
+    );
+    // page.html.j2 was not overridden: the embedded one wraps the body.
+    assert!(out.report_html.contains("<h1>Garden notes"));
+    assert!(out.report_html.starts_with("<!DOCTYPE html>"));
+}
+
+#[test]
+fn a_broken_user_template_is_a_readable_error() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("plan.md.j2"), "{% for %}").unwrap();
+    let err = render_plan(&lock_of(&scenario()), Some(dir.path())).unwrap_err();
+    assert!(
+        err.to_string()
+            .starts_with("error: template plan.md.j2 failed"),
+        "{err}"
+    );
+}
+
+#[test]
+fn rendering_is_deterministic() {
+    let a = render_report(&scenario(), None).unwrap();
+    let b = render_report(&scenario(), None).unwrap();
+    assert_eq!(a, b);
+    let p = render_plan(&lock_of(&scenario()), None).unwrap();
+    let q = render_plan(&lock_of(&scenario()), None).unwrap();
+    assert_eq!(p, q);
+}
+
+#[test]
+fn every_figure_is_labelled() {
+    let out = render_report(&scenario(), None).unwrap();
+    let names: Vec<&str> = out.figures.iter().map(|(n, _)| n.as_str()).collect();
+    assert_eq!(
+        names,
+        [
+            "h1-groups.svg",
+            "h1-qq.svg",
+            "h1-difference.svg",
+            "h2-pairs.svg",
+            "h2-qq.svg",
+            "h2-differences.svg",
+            "h2-difference.svg"
+        ]
+    );
+    for (name, svg) in &out.figures {
+        assert!(svg.contains("<title") && svg.contains("<desc"), "{name}");
+        assert!(
+            out.report_md.contains(&format!("]({name})")),
+            "{name} is referenced"
+        );
+    }
+}
+
+#[test]
+fn status_lines_follow_the_lock_state() {
+    let mut r = scenario();
+    r.lock = LockState::Deviates;
+    r.changes = vec![attest::plan::canonical::FieldChange {
+        field: "alpha".into(),
+        locked: "0.05".into(),
+        current: "0.1".into(),
+    }];
+    r.deviations = vec![Deviation {
+        date: "2026-05-01".into(),
+        change: "alpha".into(),
+        reason: "the funder asked".into(),
+    }];
+    let md = render_report(&r, None).unwrap().report_md;
+    assert!(md.contains("**Ran with deviations from the lock** (locked 2026-04-02)"));
+    assert!(
+        md.contains("| alpha | 0\\.05 | 0\\.1 |") || md.contains("| alpha | 0.05 | 0.1 |"),
+        "{md}"
+    );
+    assert!(md.contains("the funder asked"));
+    r.lock = LockState::Unlocked;
+    r.lock_record = None;
+    let md = render_report(&r, None).unwrap().report_md;
+    assert!(md.contains("**Not preregistered**"));
+}
+
+#[test]
+fn snapshot_report() {
+    let out = render_report(&scenario(), None).unwrap();
+    insta::assert_snapshot!("report_md", out.report_md);
+    insta::assert_snapshot!("report_html", out.report_html);
+}
+
+#[test]
+fn snapshot_plan() {
+    let out = render_plan(&lock_of(&scenario()), None).unwrap();
+    insta::assert_snapshot!("plan_md", out.plan_md);
+    insta::assert_snapshot!("plan_html", out.plan_html);
+}
