@@ -269,19 +269,35 @@ pub fn locate(
         match hits.as_slice() {
             [i] => out.push(*i),
             [] => {
+                // Same name in another case first, then a name that extends the
+                // other, then the fewest edits.
+                let wanted_lower = u.name.to_lowercase();
                 let near = header
                     .iter()
                     .filter(|h| !h.is_empty())
-                    .map(|h| (crate::plan::validate::edit_distance(&u.name, h), h))
+                    .map(|h| {
+                        let lower = h.to_lowercase();
+                        let rank = if lower == wanted_lower {
+                            0
+                        } else if lower.starts_with(&wanted_lower)
+                            || wanted_lower.starts_with(&lower)
+                        {
+                            1
+                        } else {
+                            2
+                        };
+                        (rank, crate::plan::validate::edit_distance(&u.name, h), h)
+                    })
+                    .filter(|(rank, d, h)| *rank < 2 || *d <= 2.max(h.chars().count() / 3))
                     .min()
-                    .filter(|(d, h)| *d <= 2.max(h.chars().count() / 3));
+                    .map(|(_, _, h)| h);
                 let listed = header
                     .iter()
                     .map(|h| format!("\"{h}\""))
                     .collect::<Vec<_>>()
                     .join(", ");
                 let help = match near {
-                    Some((_, h)) => format!("did you mean \"{h}\"? The header names: {listed}"),
+                    Some(h) => format!("did you mean \"{h}\"? The header names: {listed}"),
                     None => format!("the header names: {listed}"),
                 };
                 return Err(Failure::input(format!(

@@ -37,7 +37,8 @@ pub fn read_delimited(
     // The first non-empty record is the header (the csv crate skips blank lines).
     rdr.read_byte_record(&mut header)
         .map_err(|e| csv_failure(&e, source, 1))?;
-    let header_line = header.position().map_or(1, |p| p.line() as usize);
+    let header_start = skip_breaks(bytes, header.position().map_or(0, |p| p.byte() as usize));
+    let header_line = 1 + breaks(&bytes[..header_start]);
     let names = header
         .iter()
         .enumerate()
@@ -64,9 +65,13 @@ pub fn read_delimited(
         }
     }
     let index = locate(&names, wanted, source, header_line)?;
-    let body_start = rdr.position().byte() as usize;
-    let body = &bytes[body_start.min(bytes.len())..];
-    let first_line = rdr.position().line() as usize;
+    // The reader may stop between the \r and \n of the header's line end.
+    let mut body_start = (rdr.position().byte() as usize).min(bytes.len());
+    if body_start > 0 && bytes[body_start - 1] == b'\r' && bytes.get(body_start) == Some(&b'\n') {
+        body_start += 1;
+    }
+    let body = &bytes[body_start..];
+    let first_line = 1 + breaks(&bytes[..body_start]);
     let job = Job {
         delim,
         ncols: names.len(),
@@ -153,6 +158,25 @@ fn split(body: &[u8]) -> Vec<(usize, usize)> {
     out
 }
 
+/// Line breaks in `s`: each `\n`, and each `\r` not followed by `\n`.
+fn breaks(s: &[u8]) -> usize {
+    let lf = s.iter().filter(|&&b| b == b'\n').count();
+    let lone_cr = s
+        .windows(2)
+        .filter(|w| w[0] == b'\r' && w[1] != b'\n')
+        .count()
+        + usize::from(s.last() == Some(&b'\r'));
+    lf + lone_cr
+}
+
+/// The first offset at or after `i` that is not a line-end byte.
+fn skip_breaks(s: &[u8], mut i: usize) -> usize {
+    while i < s.len() && matches!(s[i], b'\r' | b'\n') {
+        i += 1;
+    }
+    i.min(s.len())
+}
+
 /// What is shared by every chunk.
 struct Job<'a> {
     delim: u8,
@@ -179,7 +203,10 @@ impl Job<'_> {
             first: first_line,
             jumps: Vec::new(),
         };
-        let (mut rows, mut expect) = (0usize, first_line);
+        // Line numbers are counted here, not taken from the csv reader, whose
+        // positions lag behind CRLF line ends and skip blank lines.
+        let quoted = bytes.contains(&b'"');
+        let (mut rows, mut prev_start, mut prev_line) = (0usize, 0usize, first_line);
         loop {
             let more = rdr
                 .read_byte_record(&mut rec)
@@ -187,12 +214,27 @@ impl Job<'_> {
             if !more {
                 break;
             }
-            let line = rec
-                .position()
-                .map_or(expect, |p| first_line + p.line() as usize - 1);
-            if line != expect {
+            let start = skip_breaks(
+                bytes,
+                rec.position().map_or(prev_start, |p| p.byte() as usize),
+            );
+            let between = &bytes[prev_start..start.max(prev_start)];
+            // Without quotes no record spans lines: only the line ends just before it count.
+            let gap = if quoted || rows == 0 {
+                between
+            } else {
+                let run = between
+                    .iter()
+                    .rev()
+                    .take_while(|b| matches!(b, b'\r' | b'\n'))
+                    .count();
+                &between[between.len() - run..]
+            };
+            let line = prev_line + breaks(gap);
+            if line != lines.line(rows) {
                 lines.jumps.push((rows, line));
             }
+            (prev_start, prev_line) = (start, line);
             if rec.len() != self.ncols {
                 return Err(self.ragged(&rec, line));
             }
@@ -207,10 +249,6 @@ impl Job<'_> {
                 })?;
             }
             rows += 1;
-            expect = line + 1;
-        }
-        if !lines.jumps.is_empty() && lines.jumps[0].0 == 0 {
-            lines.first = lines.jumps[0].1;
         }
         Ok(Part {
             rows,
@@ -222,9 +260,17 @@ impl Job<'_> {
     fn ragged(&self, rec: &csv::ByteRecord, line: usize) -> Failure {
         let n = rec.len();
         let trailing = n == self.ncols + 1 && rec.get(n - 1).is_some_and(|c| c.is_empty());
+        let fields = |k: usize| {
+            if k == 1 {
+                "1 field".to_string()
+            } else {
+                format!("{k} fields")
+            }
+        };
         let f = Failure::input(format!(
-            "this row has {n} fields, the header has {}",
-            self.ncols
+            "this row has {}, the header has {}",
+            fields(n),
+            fields(self.ncols)
         ))
         .at(self.source, line, Some(n.min(self.ncols) + 1));
         if trailing {
