@@ -111,6 +111,11 @@ pub struct RowFlow {
     /// Rows read that belong to neither group (other levels of the
     /// grouping column), ignored and counted.
     pub other_levels: usize,
+    /// Rows whose group (or condition) cell is missing, so they belong to
+    /// neither group; dropped. `read`, `other_levels` and `no_group` add up
+    /// to the rows of the file.
+    #[serde(default)]
+    pub no_group: usize,
     /// Each exclusion rule, in order.
     pub rules: Vec<RuleStep>,
     /// Rows dropped because the outcome (or group, or pair) was missing.
@@ -118,6 +123,11 @@ pub struct RowFlow {
     /// Units dropped in paired designs because one of the two measurements
     /// was missing or excluded.
     pub incomplete_pairs: usize,
+    /// Rows (measurements) dropped from each side because their partner
+    /// measurement was missing, excluded or absent; per group,
+    /// `read − Σ rules − missing − unpaired = analysed`.
+    #[serde(default)]
+    pub unpaired: [usize; 2],
     /// Values analysed in each group (pairs for paired designs: both equal).
     pub analysed: [usize; 2],
 }

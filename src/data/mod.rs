@@ -1,31 +1,107 @@
 //! Data: read the file the plan names, keep only the columns it uses,
 //! apply the preregistered exclusions, and hand each hypothesis its values.
 //!
-//! Reading is streaming: only the columns some hypothesis or exclusion rule
-//! uses are kept, numeric columns as `f64` (NaN marks a missing cell) and
-//! text columns as small integer codes into a table of distinct values.
+//! The work is split by step: [`read`] streams delimited text, [`xlsx`]
+//! reads a worksheet, both through [`cell`] (one place that decides what a
+//! cell means) into the columns below; [`exclude`] applies the `[[exclude]]`
+//! rules once per file; [`select`](mod@select) pairs and groups the rows of
+//! one hypothesis and counts where every row went.
+//!
+//! Only the columns some hypothesis or exclusion rule uses are kept:
+//! numeric columns as `f64` (NaN marks a missing cell, 8 bytes a value) and
+//! text columns as `u32` codes into a table of distinct texts.
+
+pub mod cell;
+pub mod exclude;
+pub mod read;
+pub mod select;
+pub mod xlsx;
 
 use crate::error::{Failure, Result};
-use crate::plan::{Comparison, Hypothesis, Plan};
-use crate::results::{RowFlow, RuleStep};
+use crate::plan::{Comparison, DataFormat, ExcludeKind, Plan};
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 
-/// A column as kept in memory.
-#[derive(Clone, Debug)]
-pub enum Column {
-    /// Numbers; NaN marks a missing cell.
-    Numeric(Vec<f64>),
-    /// Text as codes into `levels`; `u32::MAX` marks a missing cell.
-    Text {
-        /// One code per row.
-        codes: Vec<u32>,
-        /// The distinct texts, in order of first appearance.
-        levels: Vec<String>,
-    },
+pub use select::{select, Selected};
+
+/// A text column: one code per row into `levels`.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct TextColumn {
+    /// One code per row, an index into `levels`.
+    pub codes: Vec<u32>,
+    /// The distinct cell texts (trimmed), in order of first appearance.
+    pub levels: Vec<String>,
+    /// For each level, whether its text is one of the plan's missing texts.
+    pub missing: Vec<bool>,
 }
 
-/// The used columns of the data file.
+impl TextColumn {
+    /// The code of a non-missing level with this text, if any row has it.
+    pub fn code_of(&self, text: &str) -> Option<u32> {
+        self.levels
+            .iter()
+            .zip(&self.missing)
+            .position(|(l, m)| !m && l == text)
+            .map(|p| p as u32)
+    }
+
+    /// Whether row `i` is missing.
+    pub fn is_missing(&self, i: usize) -> bool {
+        self.missing[self.codes[i] as usize]
+    }
+
+    /// The non-missing levels, in order of first appearance.
+    pub fn present(&self) -> Vec<&str> {
+        self.levels
+            .iter()
+            .zip(&self.missing)
+            .filter(|(_, m)| !**m)
+            .map(|(l, _)| l.as_str())
+            .collect()
+    }
+}
+
+/// A used column as kept in memory: as numbers, as text, or both when the
+/// plan uses it both ways (an outcome that a `values` rule also looks at).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Column {
+    /// The header text.
+    pub name: String,
+    /// 1-based position in the file (the column number in messages).
+    pub position: usize,
+    /// The values when the plan uses the column as numbers.
+    pub numbers: Option<Vec<f64>>,
+    /// The texts when the plan uses the column as labels.
+    pub text: Option<TextColumn>,
+}
+
+/// Maps a data row (0-based) to the line of the file (or worksheet row) it
+/// starts on. Rows are consecutive lines except after blank lines or quoted
+/// line breaks, which are recorded as jumps, so the map costs nothing for
+/// ordinary files.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct LineMap {
+    /// Line of row 0.
+    pub first: usize,
+    /// `(row, line)` where the line is not the previous row's line + 1.
+    pub jumps: Vec<(usize, usize)>,
+}
+
+impl LineMap {
+    /// The 1-based line of data row `row`.
+    pub fn line(&self, row: usize) -> usize {
+        let k = self.jumps.partition_point(|(r, _)| *r <= row);
+        match k {
+            0 => self.first + row,
+            _ => {
+                let (r, l) = self.jumps[k - 1];
+                l + (row - r)
+            }
+        }
+    }
+}
+
+/// The used columns of the data file, and which rows the exclusion rules removed.
 #[derive(Clone, Debug)]
 pub struct Dataset {
     /// The file as the plan names it.
@@ -36,30 +112,70 @@ pub struct Dataset {
     pub sha256: String,
     /// Data rows (header excluded).
     pub rows: usize,
-    /// 1-based file line of each data row's start (for messages).
+    /// How positions are named in messages: the path, or `path[Sheet]` for workbooks.
+    pub source: String,
+    /// The used columns, by header name.
     pub columns: HashMap<String, Column>,
+    /// Data row → file line (or worksheet row).
+    pub lines: LineMap,
+    /// Per row: 0 when kept, k when removed by the k-th `[[exclude]]` rule (1-based).
+    pub excluded_by: Vec<u16>,
 }
 
-/// The values one hypothesis analyses, and how rows flowed to them.
-#[derive(Clone, Debug)]
-pub struct Selected {
-    /// First group / first measurement / the one-sample values.
-    pub first: Vec<f64>,
-    /// Second group / second measurement (aligned with `first` for paired
-    /// designs) / empty for one-sample.
-    pub second: Vec<f64>,
-    /// Row flow.
-    pub flow: RowFlow,
+impl Dataset {
+    /// The column named `name`, or an error when the plan uses a column
+    /// this dataset was not read with.
+    pub fn column(&self, name: &str) -> Result<&Column> {
+        self.columns.get(name).ok_or_else(|| {
+            Failure::internal(format!("column \"{name}\" was not read from the data file"))
+                .in_file(&self.source)
+                .help("load the data with the same plan that selects from it")
+        })
+    }
+
+    /// The numeric values of a column the plan uses as numbers.
+    pub fn numbers(&self, name: &str) -> Result<&[f64]> {
+        let c = self.column(name)?;
+        c.numbers.as_deref().ok_or_else(|| {
+            Failure::internal(format!("column \"{name}\" was not read as numbers"))
+                .in_file(&self.source)
+        })
+    }
+
+    /// The texts of a column the plan uses as labels.
+    pub fn text(&self, name: &str) -> Result<&TextColumn> {
+        let c = self.column(name)?;
+        c.text.as_ref().ok_or_else(|| {
+            Failure::internal(format!("column \"{name}\" was not read as text"))
+                .in_file(&self.source)
+        })
+    }
 }
 
-/// Which columns the plan uses, and whether each must be numeric.
-pub fn used_columns(plan: &Plan) -> Vec<(String, bool)> {
-    let mut out: Vec<(String, bool)> = Vec::new();
+/// A column the plan uses and how: as numbers, as text, or both.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Use {
+    /// Header name.
+    pub name: String,
+    /// Used as numbers (outcome, paired column, numeric rule).
+    pub numeric: bool,
+    /// Used as labels (group, unit, condition, `values` rule, `by`).
+    pub text: bool,
+}
+
+/// Which columns the plan uses, in first-use order, and how.
+pub fn used_columns(plan: &Plan) -> Vec<Use> {
+    let mut out: Vec<Use> = Vec::new();
     let mut add = |name: &str, numeric: bool| {
-        if let Some(e) = out.iter_mut().find(|(n, _)| n == name) {
-            e.1 |= numeric;
+        if let Some(e) = out.iter_mut().find(|u| u.name == name) {
+            e.numeric |= numeric;
+            e.text |= !numeric;
         } else {
-            out.push((name.to_string(), numeric));
+            out.push(Use {
+                name: name.to_string(),
+                numeric,
+                text: !numeric,
+            });
         }
     };
     for h in &plan.hypotheses {
@@ -72,7 +188,9 @@ pub fn used_columns(plan: &Plan) -> Vec<(String, bool)> {
                 add(first, true);
                 add(second, true);
             }
-            Comparison::PairedRows { pair_by, condition, .. } => {
+            Comparison::PairedRows {
+                pair_by, condition, ..
+            } => {
                 add(pair_by, false);
                 add(condition, false);
             }
@@ -80,13 +198,22 @@ pub fn used_columns(plan: &Plan) -> Vec<(String, bool)> {
         }
     }
     for r in &plan.exclude {
-        let numeric = !matches!(r.rule, crate::plan::ExcludeKind::Values { .. });
-        add(&r.column, numeric);
+        match &r.rule {
+            ExcludeKind::Values { .. } => add(&r.column, false),
+            ExcludeKind::Range { .. } => add(&r.column, true),
+            ExcludeKind::MedianDistance { by, .. } | ExcludeKind::TukeyFences { by, .. } => {
+                add(&r.column, true);
+                if let Some(b) = by {
+                    add(b, false);
+                }
+            }
+        }
     }
     out
 }
 
-/// Reads the data file of `plan`, resolved against `plan_dir`.
+/// Reads the data file of `plan`, resolved against `plan_dir`, and applies
+/// the plan's exclusion rules.
 pub fn load(plan: &Plan, plan_dir: &Path) -> Result<Dataset> {
     let path = plan_dir.join(&plan.data.path);
     let bytes = std::fs::read(&path).map_err(|e| {
@@ -95,182 +222,134 @@ pub fn load(plan: &Plan, plan_dir: &Path) -> Result<Dataset> {
     })?;
     let sha256 = crate::plan::canonical::sha256_hex(&bytes);
     let display = plan.data.path.clone();
-    let mut rdr = csv::ReaderBuilder::new()
-        .delimiter(plan.data.delimiter as u8)
-        .has_headers(true)
-        .from_reader(bytes.as_slice());
-    let headers = rdr
-        .byte_headers()
-        .map_err(|e| Failure::input(format!("cannot read the header row: {e}")).in_file(&display))?
-        .clone();
-    let names: Vec<String> = headers
-        .iter()
-        .map(|h| String::from_utf8_lossy(h).trim_start_matches('\u{feff}').trim().to_string())
-        .collect();
     let wanted = used_columns(plan);
-    let mut slots = Vec::new();
-    for (name, numeric) in &wanted {
-        let idx = names.iter().position(|n| n == name).ok_or_else(|| {
-            Failure::input(format!("column \"{name}\" is not in the data"))
-                .in_file(&display)
-                .help(format!("the file has the columns: {}", names.join(", ")))
-        })?;
-        slots.push((name.clone(), idx, *numeric));
-    }
-    let mut numeric: Vec<Vec<f64>> = vec![Vec::new(); slots.len()];
-    let mut text: Vec<(Vec<u32>, Vec<String>, HashMap<Vec<u8>, u32>)> =
-        (0..slots.len()).map(|_| (Vec::new(), Vec::new(), HashMap::new())).collect();
-    let mut rec = csv::ByteRecord::new();
-    let mut rows = 0;
-    loop {
-        let more = rdr.read_byte_record(&mut rec).map_err(|e| {
-            let line = e.position().map(|p| p.line() as usize).unwrap_or(0);
-            Failure::input(format!("the data file cannot be read: {e}")).at(&display, line.max(1), None)
-        })?;
-        if !more {
-            break;
-        }
-        rows += 1;
-        let line = rec.position().map(|p| p.line() as usize).unwrap_or(rows + 1);
-        for (k, (name, idx, is_num)) in slots.iter().enumerate() {
-            let cell = rec.get(*idx).unwrap_or(b"");
-            let cell_s = String::from_utf8_lossy(cell);
-            let trimmed = cell_s.trim();
-            let missing = plan.data.missing.iter().any(|m| m == trimmed);
-            if *is_num {
-                let v = if missing {
-                    f64::NAN
-                } else {
-                    let t = if plan.data.decimal == ',' {
-                        trimmed.replace(',', ".")
-                    } else {
-                        trimmed.to_string()
-                    };
-                    match t.parse::<f64>() {
-                        Ok(v) if v.is_finite() => v,
-                        _ => {
-                            return Err(Failure::input(format!(
-                                "column \"{name}\": \"{trimmed}\" is not a number"
-                            ))
-                            .at(&display, line, Some(idx + 1))
-                            .help("fix the cell, or list its text under `missing` in [data] if it means a missing value"))
-                        }
-                    }
-                };
-                numeric[k].push(v);
-            } else {
-                let (codes, levels, index) = &mut text[k];
-                if missing {
-                    codes.push(u32::MAX);
-                } else {
-                    let key = trimmed.as_bytes().to_vec();
-                    let next = levels.len() as u32;
-                    let code = *index.entry(key).or_insert_with(|| {
-                        levels.push(trimmed.to_string());
-                        next
-                    });
-                    codes.push(code);
-                }
-            }
-        }
-    }
-    let mut columns = HashMap::new();
-    for (k, (name, _, is_num)) in slots.into_iter().enumerate() {
-        let col = if is_num {
-            Column::Numeric(std::mem::take(&mut numeric[k]))
-        } else {
-            let (codes, levels, _) = std::mem::take(&mut text[k]);
-            Column::Text { codes, levels }
-        };
-        columns.insert(name, col);
-    }
-    Ok(Dataset {
+    let table = match plan.data.format {
+        DataFormat::Delimited => read::read_delimited(&bytes, &display, &plan.data, &wanted)?,
+        DataFormat::Xlsx => xlsx::read_xlsx(bytes, &display, &plan.data, &wanted)?,
+    };
+    let mut ds = Dataset {
         display_path: display,
         path,
         sha256,
-        rows,
-        columns,
-    })
+        rows: table.rows,
+        source: table.source,
+        columns: table.columns,
+        lines: table.lines,
+        excluded_by: Vec::new(),
+    };
+    ds.excluded_by = exclude::apply(&ds, &plan.exclude)?;
+    Ok(ds)
 }
 
-/// Selects the values of one hypothesis (exclusion rules are applied by
-/// the data issue's extension; here every row is kept).
-pub fn select(ds: &Dataset, _plan: &Plan, h: &Hypothesis) -> Result<Selected> {
-    let num = |name: &str| -> &Vec<f64> {
-        match ds.columns.get(name) {
-            Some(Column::Numeric(v)) => v,
-            _ => unreachable!("used_columns registered {name} as numeric"),
-        }
-    };
-    let mut flow = RowFlow {
-        read: [0, 0],
-        other_levels: 0,
-        rules: Vec::<RuleStep>::new(),
-        missing: [0, 0],
-        incomplete_pairs: 0,
-        analysed: [0, 0],
-    };
-    let (mut first, mut second) = (Vec::new(), Vec::new());
-    match &h.comparison {
-        Comparison::Groups { group, levels } => {
-            let y = num(h.outcome.as_deref().unwrap_or_default());
-            let Some(Column::Text { codes, levels: lv }) = ds.columns.get(group) else {
-                unreachable!("group column registered as text")
-            };
-            let code_of = |l: &str| lv.iter().position(|x| x == l).map(|p| p as u32);
-            let (a, b) = (code_of(&levels[0]), code_of(&levels[1]));
-            for (i, c) in codes.iter().enumerate() {
-                let slot = if Some(*c) == a {
-                    0
-                } else if Some(*c) == b {
-                    1
-                } else {
-                    flow.other_levels += 1;
-                    continue;
+/// What a reader hands back: the used columns and where each row came from.
+#[derive(Debug)]
+pub struct Table {
+    /// Data rows.
+    pub rows: usize,
+    /// Name used for positions in messages.
+    pub source: String,
+    /// The used columns.
+    pub columns: HashMap<String, Column>,
+    /// Row → line.
+    pub lines: LineMap,
+}
+
+/// Finds each used column in the header, failing on unknown names (with a
+/// "did you mean") and on used names that appear twice. Returns the
+/// 0-based index of each used column.
+pub fn locate(
+    header: &[String],
+    wanted: &[Use],
+    source: &str,
+    header_line: usize,
+) -> Result<Vec<usize>> {
+    let mut out = Vec::with_capacity(wanted.len());
+    for u in wanted {
+        let hits: Vec<usize> = (0..header.len()).filter(|&i| header[i] == u.name).collect();
+        match hits.as_slice() {
+            [i] => out.push(*i),
+            [] => {
+                // Same name in another case first, then a name that extends the
+                // other, then the fewest edits.
+                let wanted_lower = u.name.to_lowercase();
+                let near = header
+                    .iter()
+                    .filter(|h| !h.is_empty())
+                    .map(|h| {
+                        let lower = h.to_lowercase();
+                        let rank = if lower == wanted_lower {
+                            0
+                        } else if lower.starts_with(&wanted_lower)
+                            || wanted_lower.starts_with(&lower)
+                        {
+                            1
+                        } else {
+                            2
+                        };
+                        (rank, crate::plan::validate::edit_distance(&u.name, h), h)
+                    })
+                    .filter(|(rank, d, h)| *rank < 2 || *d <= 2.max(h.chars().count() / 3))
+                    .min()
+                    .map(|(_, _, h)| h);
+                let listed = header
+                    .iter()
+                    .map(|h| format!("\"{h}\""))
+                    .collect::<Vec<_>>()
+                    .join(", ");
+                let help = match near {
+                    Some(h) => format!("did you mean \"{h}\"? The header names: {listed}"),
+                    None => format!("the header names: {listed}"),
                 };
-                flow.read[slot] += 1;
-                if y[i].is_nan() {
-                    flow.missing[slot] += 1;
-                } else if slot == 0 {
-                    first.push(y[i]);
-                } else {
-                    second.push(y[i]);
-                }
+                return Err(Failure::input(format!(
+                    "the plan uses column \"{}\", which is not in the header",
+                    u.name
+                ))
+                .at(source, header_line, None)
+                .help(help));
             }
-        }
-        Comparison::PairedColumns { first: f, second: s } => {
-            let (x, y) = (num(f), num(s));
-            flow.read = [ds.rows, ds.rows];
-            for i in 0..ds.rows {
-                if x[i].is_nan() || y[i].is_nan() {
-                    flow.incomplete_pairs += 1;
-                    flow.missing[0] += usize::from(x[i].is_nan());
-                    flow.missing[1] += usize::from(y[i].is_nan());
-                } else {
-                    first.push(x[i]);
-                    second.push(y[i]);
-                }
+            many => {
+                let cols: Vec<String> = many.iter().map(|i| (i + 1).to_string()).collect();
+                return Err(Failure::input(format!(
+                    "column \"{}\" appears {} times in the header (columns {})",
+                    u.name,
+                    many.len(),
+                    cols.join(", ")
+                ))
+                .at(source, header_line, Some(many[1] + 1))
+                .help("rename the duplicates so every column the plan uses has one clear name"));
             }
-        }
-        Comparison::Reference { .. } => {
-            let y = num(h.outcome.as_deref().unwrap_or_default());
-            flow.read = [ds.rows, 0];
-            for &v in y {
-                if v.is_nan() {
-                    flow.missing[0] += 1;
-                } else {
-                    first.push(v);
-                }
-            }
-        }
-        Comparison::PairedRows { .. } => {
-            return Err(Failure::input(format!(
-                "hypothesis {}: paired data in long layout (`pair_by`/`condition`) cannot be read by this build yet",
-                h.id
-            ))
-            .help("store the two measurements as two columns and use `first`/`second`"))
         }
     }
-    flow.analysed = [first.len(), second.len()];
-    Ok(Selected { first, second, flow })
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn line_map_follows_jumps() {
+        let m = LineMap {
+            first: 2,
+            jumps: vec![(3, 7), (5, 12)],
+        };
+        let lines: Vec<usize> = (0..7).map(|r| m.line(r)).collect();
+        assert_eq!(lines, [2, 3, 4, 7, 8, 12, 13]);
+    }
+
+    #[test]
+    fn locate_suggests_the_near_name() {
+        let header: Vec<String> = ["id", "volume_ml", "proof"].map(String::from).to_vec();
+        let want = [Use {
+            name: "volume".into(),
+            numeric: true,
+            text: false,
+        }];
+        let e = locate(&header, &want, "d.csv", 1).unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "error: d.csv:1: the plan uses column \"volume\", which is not in the header\n\
+             help: did you mean \"volume_ml\"? The header names: \"id\", \"volume_ml\", \"proof\""
+        );
+    }
 }

@@ -1,0 +1,314 @@
+//! What a cell means: missing, a number, or a label — decided in one place
+//! for every reader, so a CSV file and a workbook say the same thing about
+//! the same cell.
+//!
+//! Numbers are parsed strictly: an optional sign, digits, the plan's decimal
+//! mark, an optional exponent. `inf`, `nan` and values beyond the range of a
+//! double are refused with their own message instead of being let through,
+//! because one infinite value silently turns every mean into nonsense.
+//! Short plain decimals take Clinger's exact fast path (W. D. Clinger 1990,
+//! "How to read floating point numbers accurately", PLDI '90): a mantissa
+//! below 2^53 divided by an exact power of ten ≤ 10^22 is one correctly
+//! rounded IEEE division. Everything else goes to the standard library's
+//! correctly rounded parser.
+
+use super::{Column, TextColumn, Use};
+use crate::error::Failure;
+use std::collections::HashMap;
+
+/// Why a cell could not be used.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum Problem {
+    /// Not a number at all.
+    NotNumber,
+    /// `inf`, `nan` and their spellings.
+    NotFinite,
+    /// A number beyond ±1.8e308.
+    Overflow,
+    /// The bytes are not UTF-8 text.
+    NotUtf8,
+}
+
+/// Exact powers of ten representable as doubles.
+const POW10: [f64; 23] = [
+    1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16,
+    1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
+];
+
+/// Parses a trimmed, non-missing cell as a number with `decimal` (`.` or `,`) as the decimal mark.
+pub fn parse_number(s: &[u8], decimal: u8) -> Result<f64, Problem> {
+    if let Some(v) = fast_path(s, decimal) {
+        return Ok(v);
+    }
+    let text = std::str::from_utf8(s).map_err(|_| Problem::NotUtf8)?;
+    let lower = text.to_ascii_lowercase();
+    let bare = lower.trim_start_matches(['+', '-']);
+    if matches!(bare, "inf" | "infinity" | "nan") {
+        return Err(Problem::NotFinite);
+    }
+    let other = if decimal == b',' { b'.' } else { b',' };
+    if s.is_empty()
+        || s.contains(&other)
+        || !s
+            .iter()
+            .all(|b| b.is_ascii_digit() || b"+-eE".contains(b) || *b == decimal)
+    {
+        return Err(Problem::NotNumber);
+    }
+    let owned;
+    let text = if decimal == b',' {
+        owned = text.replace(',', ".");
+        owned.as_str()
+    } else {
+        text
+    };
+    match text.parse::<f64>() {
+        Ok(v) if v.is_finite() => Ok(v),
+        Ok(_) => Err(Problem::Overflow),
+        Err(_) => Err(Problem::NotNumber),
+    }
+}
+
+/// `[+-]digits[<decimal>digits]` with at most 15 digits: exact.
+fn fast_path(s: &[u8], decimal: u8) -> Option<f64> {
+    let (neg, body) = match s.first()? {
+        b'-' => (true, &s[1..]),
+        b'+' => (false, &s[1..]),
+        _ => (false, s),
+    };
+    let (mut m, mut digits, mut frac, mut seen_mark) = (0u64, 0usize, 0usize, false);
+    for &b in body {
+        if b.is_ascii_digit() {
+            m = m * 10 + u64::from(b - b'0');
+            digits += 1;
+            frac += usize::from(seen_mark);
+            if digits > 15 {
+                return None;
+            }
+        } else if b == decimal && !seen_mark {
+            seen_mark = true;
+        } else {
+            return None;
+        }
+    }
+    if digits == 0 {
+        return None;
+    }
+    let v = m as f64 / POW10[frac];
+    Some(if neg { -v } else { v })
+}
+
+/// Trims ASCII whitespace (spaces, tabs, a stray carriage return).
+pub fn trim(s: &[u8]) -> &[u8] {
+    s.trim_ascii()
+}
+
+/// Builds the used columns row by row; readers feed it cells and attach the
+/// position when it reports a [`Problem`].
+#[derive(Debug)]
+pub struct Builder {
+    decimal: u8,
+    missing: Vec<Vec<u8>>,
+    cols: Vec<ColumnBuild>,
+}
+
+#[derive(Debug, Default)]
+struct ColumnBuild {
+    numbers: Option<Vec<f64>>,
+    text: Option<TextColumn>,
+    index: HashMap<Vec<u8>, u32>,
+}
+
+impl Builder {
+    /// A builder for the `wanted` columns.
+    pub fn new(wanted: &[Use], decimal: char, missing: &[String]) -> Self {
+        Builder {
+            decimal: decimal as u8,
+            missing: missing
+                .iter()
+                .map(|m| m.trim().as_bytes().to_vec())
+                .collect(),
+            cols: wanted
+                .iter()
+                .map(|u| ColumnBuild {
+                    numbers: u.numeric.then(Vec::new),
+                    text: u.text.then(TextColumn::default),
+                    index: HashMap::new(),
+                })
+                .collect(),
+        }
+    }
+
+    /// Whether a trimmed cell text is one of the missing texts.
+    pub fn is_missing(&self, s: &[u8]) -> bool {
+        self.missing.iter().any(|m| m.as_slice() == s)
+    }
+
+    /// Adds a cell given as text to column `k`.
+    pub fn push_text(&mut self, k: usize, raw: &[u8]) -> Result<(), Problem> {
+        let s = trim(raw);
+        let missing = self.is_missing(s);
+        let decimal = self.decimal;
+        let col = &mut self.cols[k];
+        if let Some(nums) = &mut col.numbers {
+            nums.push(if missing {
+                f64::NAN
+            } else {
+                parse_number(s, decimal)?
+            });
+        }
+        if let Some(t) = &mut col.text {
+            let code = intern(t, &mut col.index, s, missing)?;
+            t.codes.push(code);
+        }
+        Ok(())
+    }
+
+    /// Adds a cell that is already a number (a spreadsheet's numeric cell).
+    pub fn push_number(&mut self, k: usize, v: f64) -> Result<(), Problem> {
+        if !v.is_finite() {
+            return Err(Problem::NotFinite);
+        }
+        let col = &mut self.cols[k];
+        if let Some(nums) = &mut col.numbers {
+            nums.push(v);
+        }
+        if let Some(t) = &mut col.text {
+            let s = v.to_string();
+            let code = intern(t, &mut col.index, s.as_bytes(), false)?;
+            t.codes.push(code);
+        }
+        Ok(())
+    }
+
+    /// Finishes the columns; `names[k]`/`positions[k]` describe column `k`.
+    pub fn finish(self, wanted: &[Use], positions: &[usize]) -> HashMap<String, Column> {
+        self.cols
+            .into_iter()
+            .zip(wanted.iter().zip(positions))
+            .map(|(c, (u, p))| {
+                let col = Column {
+                    name: u.name.clone(),
+                    position: p + 1,
+                    numbers: c.numbers,
+                    text: c.text,
+                };
+                (u.name.clone(), col)
+            })
+            .collect()
+    }
+}
+
+/// The code of `s` in `t`, adding it as a new level when unseen. Small
+/// level tables (the usual two or three groups) are scanned, larger ones hashed.
+fn intern(
+    t: &mut TextColumn,
+    index: &mut HashMap<Vec<u8>, u32>,
+    s: &[u8],
+    missing: bool,
+) -> Result<u32, Problem> {
+    if let Some(&last) = t.codes.last() {
+        if t.levels[last as usize].as_bytes() == s {
+            return Ok(last);
+        }
+    }
+    if t.levels.len() <= 16 {
+        if let Some(p) = t.levels.iter().position(|l| l.as_bytes() == s) {
+            return Ok(p as u32);
+        }
+    } else if let Some(&c) = index.get(s) {
+        return Ok(c);
+    }
+    let text = std::str::from_utf8(s).map_err(|_| Problem::NotUtf8)?;
+    let code = u32::try_from(t.levels.len()).map_err(|_| Problem::NotNumber)?;
+    t.levels.push(text.to_string());
+    t.missing.push(missing);
+    if t.levels.len() == 17 {
+        index.extend(
+            t.levels
+                .iter()
+                .enumerate()
+                .map(|(i, l)| (l.as_bytes().to_vec(), i as u32)),
+        );
+    } else if t.levels.len() > 17 {
+        index.insert(s.to_vec(), code);
+    }
+    Ok(code)
+}
+
+/// The user's message for a cell problem at a position.
+pub fn failure(p: &Problem, column: &str, text: &[u8], decimal: char) -> Failure {
+    let shown = String::from_utf8_lossy(trim(text));
+    match p {
+        Problem::NotNumber => {
+            let f = Failure::input(format!("column \"{column}\": \"{shown}\" is not a number"));
+            let as_comma = decimal == '.' && parse_number(trim(text), b',').is_ok();
+            if as_comma {
+                f.help("the number is written with a decimal comma; add `decimal = \",\"` to [data]")
+            } else if decimal == ',' && parse_number(trim(text), b'.').is_ok() {
+                f.help("the plan says `decimal = \",\"` but this cell uses a decimal point; write every number the same way")
+            } else {
+                f.help("fix the cell, or list its text under `missing` in [data] if it means a missing value")
+            }
+        }
+        Problem::NotFinite => Failure::input(format!("column \"{column}\": \"{shown}\" is not a finite number"))
+            .help(format!("attest does not analyse infinite or undefined values; if \"{shown}\" means a missing value, list it under `missing` in [data]")),
+        Problem::Overflow => Failure::input(format!("column \"{column}\": \"{shown}\" is too large to be a number (beyond ±1.8e308)"))
+            .help("check the cell; a value this large is almost always a typing or export error"),
+        Problem::NotUtf8 => Failure::input(format!("column \"{column}\": the cell is not valid UTF-8 text"))
+            .help("save the data file as UTF-8 (most spreadsheet programs offer \"CSV UTF-8\")"),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers_parse_exactly() {
+        // Decimal literals: the expected doubles are the literals themselves.
+        let cases: [(&str, u8, f64); 8] = [
+            ("812.5", b'.', 812.5),
+            ("812,5", b',', 812.5),
+            ("-0.1", b'.', -0.1),
+            ("+3", b'.', 3.0),
+            ("1e3", b'.', 1000.0),
+            ("0.30000000000000004", b'.', 0.300_000_000_000_000_04),
+            ("123456789012345.6", b'.', 123_456_789_012_345.6),
+            (".5", b'.', 0.5),
+        ];
+        for (s, d, v) in cases {
+            assert_eq!(parse_number(s.as_bytes(), d), Ok(v), "{s}");
+        }
+    }
+
+    #[test]
+    fn strange_numbers_are_refused() {
+        assert_eq!(parse_number(b"inf", b'.'), Err(Problem::NotFinite));
+        assert_eq!(parse_number(b"-Infinity", b'.'), Err(Problem::NotFinite));
+        assert_eq!(parse_number(b"nan", b'.'), Err(Problem::NotFinite));
+        assert_eq!(parse_number(b"1e400", b'.'), Err(Problem::Overflow));
+        assert_eq!(parse_number(b"1.234,5", b','), Err(Problem::NotNumber));
+        assert_eq!(parse_number(b"12,5", b'.'), Err(Problem::NotNumber));
+        assert_eq!(parse_number(b"812,5O", b','), Err(Problem::NotNumber));
+        assert_eq!(parse_number(b"-", b'.'), Err(Problem::NotNumber));
+        assert_eq!(parse_number(b"\xff", b'.'), Err(Problem::NotUtf8));
+    }
+
+    #[test]
+    fn many_levels_switch_to_hashing() {
+        let want = [Use {
+            name: "g".into(),
+            numeric: false,
+            text: true,
+        }];
+        let mut b = Builder::new(&want, '.', &[]);
+        for i in 0..40 {
+            b.push_text(0, format!("L{}", i % 20).as_bytes()).unwrap();
+        }
+        let cols = b.finish(&want, &[0]);
+        let t = cols["g"].text.as_ref().unwrap();
+        assert_eq!(t.levels.len(), 20);
+        assert_eq!(t.codes[25], 5);
+    }
+}
