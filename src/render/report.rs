@@ -418,7 +418,7 @@ fn size_lines(h: &HypothesisResult) -> Vec<Value> {
 fn capital(s: &str) -> String {
     let mut c = s.chars();
     match c.next() {
-        Some(f) if f == '*' => s.to_string(),
+        Some('*') => s.to_string(),
         Some(f) => f.to_uppercase().chain(c).collect(),
         None => String::new(),
     }

@@ -20,7 +20,7 @@ pub fn method_name(method: &str) -> String {
         "paired-t" => "paired t-test".into(),
         "wilcoxon-signed-rank" => "Wilcoxon signed-rank test".into(),
         "one-sample-t" => "one-sample t-test".into(),
-        "checked" => "chosen by the checks (`checked`)".into(),
+        "checked" => "chosen by the checks, `checked`".into(),
         other => escape(other),
     }
 }

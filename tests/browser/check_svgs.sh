@@ -47,10 +47,10 @@ JS
 
 flags=(--headless --no-sandbox --disable-gpu --no-first-run
        --disable-background-networking --disable-component-update --disable-sync
-       --user-data-dir="$work/profile" --run-all-compositor-stages-before-draw
+       --run-all-compositor-stages-before-draw
        --virtual-time-budget=5000 --window-size=1000,1400)
 
-dom="$("$chromium" "${flags[@]}" --dump-dom "file://$copy" 2>"$work/stderr" || true)"
+dom="$("$chromium" "${flags[@]}" --user-data-dir="$(mktemp -d -p "$work")" --dump-dom "file://$copy" 2>"$work/stderr" || true)"
 block="$(printf '%s\n' "$dom" | sed -n '/BEGIN-SVG/,/END-SVG/p' | sed '1d;$d')"
 if [[ -z "$block" ]]; then
     echo "error: chromium produced no measurements" >&2
@@ -74,7 +74,7 @@ if [[ "$count" == "0" ]]; then
     bad=1
 fi
 
-"$chromium" "${flags[@]}" --user-data-dir="$work/profile2" --screenshot="$shot" "file://$(realpath "$report")" 2>>"$work/stderr" >/dev/null || true
+"$chromium" "${flags[@]}" --user-data-dir="$(mktemp -d -p "$work")" --screenshot="$shot" "file://$(realpath "$report")" 2>>"$work/stderr" >/dev/null || true
 if [[ -s "$shot" ]]; then
     echo "screenshot: $shot"
 else
