@@ -41,7 +41,11 @@ fn ks(len: usize) -> impl Iterator<Item = usize> {
     (0..len).step_by(step).chain(std::iter::once(len - 1))
 }
 
-const ALTS: [Alternative; 3] = [Alternative::TwoSided, Alternative::Greater, Alternative::Less];
+const ALTS: [Alternative; 3] = [
+    Alternative::TwoSided,
+    Alternative::Greater,
+    Alternative::Less,
+];
 
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(400))]

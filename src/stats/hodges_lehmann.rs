@@ -253,7 +253,10 @@ mod tests {
     use super::*;
 
     fn brute_diffs(x: &[f64], y: &[f64]) -> Vec<f64> {
-        let mut v: Vec<f64> = x.iter().flat_map(|a| y.iter().map(move |b| a - b)).collect();
+        let mut v: Vec<f64> = x
+            .iter()
+            .flat_map(|a| y.iter().map(move |b| a - b))
+            .collect();
         v.sort_unstable_by(f64::total_cmp);
         v
     }

@@ -46,7 +46,9 @@ pub(crate) fn check_level(level: f64) -> Result<(), StatsError> {
     if level > 0.0 && level < 1.0 {
         Ok(())
     } else {
-        Err(StatsError::BadParameter("confidence level must be in (0, 1)"))
+        Err(StatsError::BadParameter(
+            "confidence level must be in (0, 1)",
+        ))
     }
 }
 
