@@ -164,6 +164,16 @@ mod tests {
     }
 
     #[test]
+    fn fisher_interval_at_zero_is_symmetric() {
+        // r = 0: tanh(±z·se) with z_0.975 = 1.959963984540054 (standard
+        // normal table value, from memory).
+        let i = fisher_interval(0.0, 0.1, 0.99, Alternative::TwoSided, 0.95);
+        let want = (1.959963984540054f64 * 0.1).tanh();
+        assert!((i.high.unwrap() - want).abs() < 1e-12);
+        assert!((i.low.unwrap() + want).abs() < 1e-12);
+    }
+
+    #[test]
     fn rejects_bad_levels() {
         assert!(check_level(1.0).is_err());
         assert!(check_level(f64::NAN).is_err());
