@@ -71,7 +71,12 @@ fn mann_whitney_matches_scipy() {
         close(t.estimate, f(&c["hl"]), 1e-12, &format!("HL {name}"));
         assert_eq!(t.interval.low, bound(&c["interval"][0]), "HL low {name}");
         assert_eq!(t.interval.high, bound(&c["interval"][1]), "HL high {name}");
-        close(t.rank_biserial, f(&c["rank_biserial"]), 1e-12, &format!("r {name}"));
+        close(
+            t.rank_biserial,
+            f(&c["rank_biserial"]),
+            1e-12,
+            &format!("r {name}"),
+        );
         close(
             t.prob_superiority.unwrap(),
             f(&c["prob_superiority"]),
@@ -96,7 +101,11 @@ fn wilcoxon_matches_scipy() {
         };
         assert_eq!(t.p_method, method, "{name}");
         assert_eq!(t.n_used as u64, c["n_used"].as_u64().unwrap(), "{name}");
-        assert_eq!(t.zeros_dropped as u64, c["zeros_dropped"].as_u64().unwrap(), "{name}");
+        assert_eq!(
+            t.zeros_dropped as u64,
+            c["zeros_dropped"].as_u64().unwrap(),
+            "{name}"
+        );
         close(t.statistic, f(&c["w_plus"]), 1e-10, &format!("W+ {name}"));
         // The generator flags no case where W+ is within ½ of its mean
         // (there our continuity rule gives p = 1, see wilcoxon.rs).
@@ -105,7 +114,12 @@ fn wilcoxon_matches_scipy() {
         close(t.estimate, f(&c["hl"]), 1e-12, &format!("HL {name}"));
         assert_eq!(t.interval.low, bound(&c["interval"][0]), "HL low {name}");
         assert_eq!(t.interval.high, bound(&c["interval"][1]), "HL high {name}");
-        close(t.rank_biserial, f(&c["rank_biserial"]), 1e-12, &format!("r {name}"));
+        close(
+            t.rank_biserial,
+            f(&c["rank_biserial"]),
+            1e-12,
+            &format!("r {name}"),
+        );
     }
 }
 
@@ -126,7 +140,11 @@ fn spread_tests_match_scipy() {
         let name = format!("{} ({SOURCE})", c["name"]);
         let (x, y) = (vec(&c["x"]), vec(&c["y"]));
         for (got, want, what) in [
-            (brown_forsythe(&x, &y).unwrap(), &c["brown_forsythe"], "Brown–Forsythe"),
+            (
+                brown_forsythe(&x, &y).unwrap(),
+                &c["brown_forsythe"],
+                "Brown–Forsythe",
+            ),
             (levene(&x, &y).unwrap(), &c["levene"], "Levene"),
         ] {
             close(got.f, f(&want[0]), 1e-10, &format!("{what} F {name}"));

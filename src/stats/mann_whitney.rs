@@ -11,8 +11,7 @@
 use super::hodges_lehmann::{hl_shift_sorted, kth_pairwise_difference_sorted};
 use super::rank_exact::mann_whitney_exact;
 use super::rank_tests::{
-    check_level, fisher_interval, normal_critical_k, normal_p, order_interval, tail_alpha,
-    RankTest,
+    check_level, fisher_interval, normal_critical_k, normal_p, order_interval, tail_alpha, RankTest,
 };
 use super::ranks::tie_term;
 use super::{ensure_finite, Alternative, PMethod, StatsError};
@@ -86,7 +85,7 @@ pub fn mann_whitney(
     let n = (n1 + n2) as f64;
     let mu = 0.5 * cells;
     let var = cells / 12.0 * ((n + 1.0) - ties / (n * (n - 1.0)));
-    if !(var > 0.0) {
+    if var.is_nan() || var <= 0.0 {
         return Err(StatsError::ZeroVariance);
     }
     let sigma = var.sqrt();
@@ -150,8 +149,13 @@ mod tests {
     fn complete_separation_exact_p() {
         // x above every y, n1 = n2 = 3: one arrangement in C(6,3) = 20, so
         // the one-sided exact p is 1/20 and U1 = 9.
-        let t = mann_whitney(&[4.0, 5.0, 6.0], &[1.0, 2.0, 3.0], Alternative::Greater, 0.95)
-            .unwrap();
+        let t = mann_whitney(
+            &[4.0, 5.0, 6.0],
+            &[1.0, 2.0, 3.0],
+            Alternative::Greater,
+            0.95,
+        )
+        .unwrap();
         assert_eq!(t.statistic, 9.0);
         assert_eq!(t.p, 0.05);
         assert_eq!(t.p_method, PMethod::Exact);

@@ -67,7 +67,7 @@ pub fn shapiro_wilk(x: &[f64]) -> Result<ShapiroWilk, StatsError> {
         *v -= med;
     }
     let range = s[n - 1] - s[0];
-    if !(range > 0.0) {
+    if range.is_nan() || range <= 0.0 {
         return Err(StatsError::ZeroVariance);
     }
     let a = coefficients(n);
@@ -124,7 +124,10 @@ fn coefficients(n: usize) -> Vec<f64> {
             .sqrt();
         (2, fac)
     } else {
-        (1, ((summ2 - 2.0 * m[0] * m[0]) / (1.0 - 2.0 * a1 * a1)).sqrt())
+        (
+            1,
+            ((summ2 - 2.0 * m[0] * m[0]) / (1.0 - 2.0 * a1 * a1)).sqrt(),
+        )
     };
     for i in first..half {
         a[i] = -m[i] / fac;
@@ -141,8 +144,8 @@ fn p_value(n: usize, w: f64, w1: f64) -> f64 {
     const C6: [f64; 3] = [-0.4803, -0.082676, 0.0030302];
     if n == 3 {
         // Exact for n = 3: p = (6/π)(asin √W − π/3).
-        let p = 6.0 / std::f64::consts::PI
-            * (w.sqrt().min(1.0).asin() - std::f64::consts::FRAC_PI_3);
+        let p =
+            6.0 / std::f64::consts::PI * (w.sqrt().min(1.0).asin() - std::f64::consts::FRAC_PI_3);
         return p.clamp(0.0, 1.0);
     }
     if w1 <= 0.0 {
@@ -178,10 +181,19 @@ mod tests {
 
     #[test]
     fn refuses_outside_its_range() {
-        assert!(matches!(shapiro_wilk(&[1.0, 2.0]), Err(StatsError::TooFew { .. })));
+        assert!(matches!(
+            shapiro_wilk(&[1.0, 2.0]),
+            Err(StatsError::TooFew { .. })
+        ));
         let big: Vec<f64> = (0..5001).map(f64::from).collect();
-        assert!(matches!(shapiro_wilk(&big), Err(StatsError::OutOfRange { .. })));
+        assert!(matches!(
+            shapiro_wilk(&big),
+            Err(StatsError::OutOfRange { .. })
+        ));
         assert_eq!(shapiro_wilk(&[2.0; 4]), Err(StatsError::ZeroVariance));
-        assert_eq!(shapiro_wilk(&[1.0, f64::NAN, 2.0]), Err(StatsError::NonFinite));
+        assert_eq!(
+            shapiro_wilk(&[1.0, f64::NAN, 2.0]),
+            Err(StatsError::NonFinite)
+        );
     }
 }

@@ -46,7 +46,9 @@ pub(crate) fn check_level(level: f64) -> Result<(), StatsError> {
     if level > 0.0 && level < 1.0 {
         Ok(())
     } else {
-        Err(StatsError::BadParameter("confidence level must be in (0, 1)"))
+        Err(StatsError::BadParameter(
+            "confidence level must be in (0, 1)",
+        ))
     }
 }
 
@@ -159,6 +161,16 @@ mod tests {
         assert!(i.high.is_none() && i.low.unwrap() < 0.3);
         let i = fisher_interval(1.0, 0.1, 0.99, Alternative::TwoSided, 0.95);
         assert!(i.low.unwrap() < i.high.unwrap() && i.high.unwrap() < 1.0);
+    }
+
+    #[test]
+    fn fisher_interval_at_zero_is_symmetric() {
+        // r = 0: tanh(±z·se) with z_0.975 = 1.959963984540054 (standard
+        // normal table value, from memory).
+        let i = fisher_interval(0.0, 0.1, 0.99, Alternative::TwoSided, 0.95);
+        let want = (1.959963984540054f64 * 0.1).tanh();
+        assert!((i.high.unwrap() - want).abs() < 1e-12);
+        assert!((i.low.unwrap() + want).abs() < 1e-12);
     }
 
     #[test]

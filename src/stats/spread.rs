@@ -67,7 +67,7 @@ fn deviation_anova(
     let grand = (n1 * mx + n2 * my) / n;
     let between = n1 * (mx - grand).powi(2) + n2 * (my - grand).powi(2);
     let within = sum_sq(&zx, mx) + sum_sq(&zy, my);
-    if !(within > 0.0) {
+    if within.is_nan() || within <= 0.0 {
         return Err(StatsError::ZeroVariance);
     }
     let df2 = n - 2.0;

@@ -11,8 +11,7 @@
 use super::hodges_lehmann::{hl_one_sample_sorted, kth_walsh_average_sorted};
 use super::rank_exact::wilcoxon_exact;
 use super::rank_tests::{
-    check_level, fisher_interval, normal_critical_k, normal_p, order_interval, tail_alpha,
-    RankTest,
+    check_level, fisher_interval, normal_critical_k, normal_p, order_interval, tail_alpha, RankTest,
 };
 use super::ranks::{for_each_tie_group, midrank, tie_term};
 use super::{ensure_finite, Alternative, PMethod, StatsError};
@@ -137,9 +136,12 @@ mod tests {
     #[test]
     fn all_positive_exact() {
         // n = 5, all positive: W+ = 15, P = 1/32 one-sided.
-        let t = wilcoxon_signed_rank(&[1.0, 2.0, 3.0, 4.0, 5.0], Alternative::Greater, 0.95)
-            .unwrap();
-        assert_eq!((t.statistic, t.p, t.p_method), (15.0, 1.0 / 32.0, PMethod::Exact));
+        let t =
+            wilcoxon_signed_rank(&[1.0, 2.0, 3.0, 4.0, 5.0], Alternative::Greater, 0.95).unwrap();
+        assert_eq!(
+            (t.statistic, t.p, t.p_method),
+            (15.0, 1.0 / 32.0, PMethod::Exact)
+        );
         assert_eq!(t.rank_biserial, 1.0);
         assert_eq!(t.estimate, 3.0);
         // P(W ≤ 0) = 1/32 ≤ 0.05 < P(W ≤ 1) = 2/32 → k = 1 → A_(1) = 1.
