@@ -31,17 +31,27 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
         )
     };
     let labels = labels(h);
-    let Selected { first, second, flow } = sel;
+    let Selected {
+        first,
+        second,
+        flow,
+    } = sel;
     // The values the one-sample machinery works on: differences (paired) or
     // the sample itself (one-sample, tested against `reference`).
     let (diffs, reference) = match &h.comparison {
-        Comparison::PairedColumns { .. } | Comparison::PairedRows { .. } => {
-            (first.iter().zip(&second).map(|(a, b)| a - b).collect::<Vec<_>>(), 0.0)
-        }
+        Comparison::PairedColumns { .. } | Comparison::PairedRows { .. } => (
+            first
+                .iter()
+                .zip(&second)
+                .map(|(a, b)| a - b)
+                .collect::<Vec<_>>(),
+            0.0,
+        ),
         Comparison::Reference { reference } => (first.clone(), *reference),
         Comparison::Groups { .. } => (Vec::new(), 0.0),
     };
-    let groups = summaries(h, &labels, &first, &second, &diffs, level).map_err(|e| fail("cannot describe the data", e))?;
+    let groups = summaries(h, &labels, &first, &second, &diffs, level)
+        .map_err(|e| fail("cannot describe the data", e))?;
     let checks = checks(plan, h, &labels, &first, &second, &diffs);
     let method = choose(h.method, h.design, &checks);
     let mut checks = checks;
@@ -49,7 +59,8 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
         checks.branch = Some(branch(h.design, &checks));
     }
     let run = |m: Method| run_method(m, h.alternative, level, &first, &second, &diffs, reference);
-    let test = run(method).map_err(|e| fail(&format!("{} cannot be computed", method.as_str()), e))?;
+    let test =
+        run(method).map_err(|e| fail(&format!("{} cannot be computed", method.as_str()), e))?;
     let robustness = if h.robustness {
         Method::ALL
             .iter()
@@ -61,7 +72,12 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
     };
     let equivalence = match h.equivalence {
         None => None,
-        Some([low, high]) => Some(equivalence(method, plan.alpha, low, high, &first, &second, &diffs, reference).map_err(|e| fail("the equivalence test cannot be computed", e))?),
+        Some([low, high]) => Some(
+            equivalence(
+                method, plan.alpha, low, high, &first, &second, &diffs, reference,
+            )
+            .map_err(|e| fail("the equivalence test cannot be computed", e))?,
+        ),
     };
     let p = equivalence.as_ref().map_or(test.p, |e| e.p);
     let (plot, paired_plot) = plot_data(h, &labels, &first, &second, &diffs);
@@ -87,7 +103,11 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
         p_method: test.p_method,
         estimate: test.estimate.clone(),
         effect: test.effects[0].clone(),
-        decision: if p < plan.alpha { Decision::Reject } else { Decision::Retain },
+        decision: if p < plan.alpha {
+            Decision::Reject
+        } else {
+            Decision::Retain
+        },
         test,
         checks,
         robustness,
@@ -104,7 +124,11 @@ pub fn adjust_all(plan: &Plan, results: &mut [HypothesisResult]) {
     let adj = stats::multiplicity::adjust(&ps, plan.correction);
     for (r, a) in results.iter_mut().zip(adj) {
         r.p_adjusted = a;
-        r.decision = if a < plan.alpha { Decision::Reject } else { Decision::Retain };
+        r.decision = if a < plan.alpha {
+            Decision::Reject
+        } else {
+            Decision::Retain
+        };
     }
 }
 
@@ -147,9 +171,19 @@ fn summary(label: &str, x: &[f64], level: f64) -> std::result::Result<GroupSumma
     })
 }
 
-fn summaries(h: &Hypothesis, labels: &[String; 2], first: &[f64], second: &[f64], diffs: &[f64], level: f64) -> std::result::Result<Vec<GroupSummary>, StatsError> {
+fn summaries(
+    h: &Hypothesis,
+    labels: &[String; 2],
+    first: &[f64],
+    second: &[f64],
+    diffs: &[f64],
+    level: f64,
+) -> std::result::Result<Vec<GroupSummary>, StatsError> {
     Ok(match h.design {
-        Design::Independent => vec![summary(&labels[0], first, level)?, summary(&labels[1], second, level)?],
+        Design::Independent => vec![
+            summary(&labels[0], first, level)?,
+            summary(&labels[1], second, level)?,
+        ],
         Design::Paired => vec![
             summary(&labels[0], first, level)?,
             summary(&labels[1], second, level)?,
@@ -180,7 +214,11 @@ fn normality(label: &str, x: &[f64], check_alpha: f64) -> NormalityCheck {
     }
 }
 
-fn spread(method: &str, r: std::result::Result<stats::spread::SpreadTest, StatsError>, check_alpha: f64) -> SpreadCheck {
+fn spread(
+    method: &str,
+    r: std::result::Result<stats::spread::SpreadTest, StatsError>,
+    check_alpha: f64,
+) -> SpreadCheck {
     match r {
         Ok(s) => SpreadCheck {
             method: method.into(),
@@ -203,18 +241,36 @@ fn spread(method: &str, r: std::result::Result<stats::spread::SpreadTest, StatsE
     }
 }
 
-fn checks(plan: &Plan, h: &Hypothesis, labels: &[String; 2], first: &[f64], second: &[f64], diffs: &[f64]) -> Checks {
+fn checks(
+    plan: &Plan,
+    h: &Hypothesis,
+    labels: &[String; 2],
+    first: &[f64],
+    second: &[f64],
+    diffs: &[f64],
+) -> Checks {
     let a = plan.check_alpha;
     let (normality, spread) = match h.design {
         Design::Independent => (
-            vec![normality(&labels[0], first, a), normality(&labels[1], second, a)],
             vec![
-                spread("brown-forsythe", stats::spread::brown_forsythe(first, second), a),
+                normality(&labels[0], first, a),
+                normality(&labels[1], second, a),
+            ],
+            vec![
+                spread(
+                    "brown-forsythe",
+                    stats::spread::brown_forsythe(first, second),
+                    a,
+                ),
                 spread("levene", stats::spread::levene(first, second), a),
             ],
         ),
         Design::Paired | Design::OneSample => {
-            let label = if h.design == Design::Paired { "differences" } else { labels[0].as_str() };
+            let label = if h.design == Design::Paired {
+                "differences"
+            } else {
+                labels[0].as_str()
+            };
             (vec![normality(label, diffs, a)], Vec::new())
         }
     };
@@ -274,8 +330,19 @@ fn effect(name: &str, e: &stats::effect::Effect) -> EffectSize {
     }
 }
 
-fn run_method(m: Method, alt: Alternative, level: f64, first: &[f64], second: &[f64], diffs: &[f64], reference: f64) -> std::result::Result<TestResult, StatsError> {
-    use stats::{effect as fx, mann_whitney::mann_whitney, rank_tests as rk, ttest as tt, wilcoxon::wilcoxon_signed_rank};
+fn run_method(
+    m: Method,
+    alt: Alternative,
+    level: f64,
+    first: &[f64],
+    second: &[f64],
+    diffs: &[f64],
+    reference: f64,
+) -> std::result::Result<TestResult, StatsError> {
+    use stats::{
+        effect as fx, mann_whitney::mann_whitney, rank_tests as rk, ttest as tt,
+        wilcoxon::wilcoxon_signed_rank,
+    };
     let t_result = |name: Method, t: tt::TTest, effects: Vec<EffectSize>| TestResult {
         method: name.as_str().into(),
         statistic_name: "t".into(),
@@ -330,7 +397,11 @@ fn run_method(m: Method, alt: Alternative, level: f64, first: &[f64], second: &[
     };
     Ok(match m {
         Method::StudentT | Method::WelchT => {
-            let t = if m == Method::StudentT { tt::student_t(first, second, alt, level)? } else { tt::welch_t(first, second, alt, level)? };
+            let t = if m == Method::StudentT {
+                tt::student_t(first, second, alt, level)?
+            } else {
+                tt::welch_t(first, second, alt, level)?
+            };
             let d = fx::cohens_d(first, second, alt, level)?;
             let g = fx::hedges_g(first, second, alt, level)?;
             t_result(m, t, vec![effect("cohen-d", &d), effect("hedges-g", &g)])
@@ -340,7 +411,12 @@ fn run_method(m: Method, alt: Alternative, level: f64, first: &[f64], second: &[
             let dz = fx::d_z(diffs, reference, alt, level)?;
             t_result(m, t, vec![effect("d-z", &dz)])
         }
-        Method::MannWhitney => rank_result(m, mann_whitney(first, second, alt, level)?, "U", "Hodges–Lehmann shift"),
+        Method::MannWhitney => rank_result(
+            m,
+            mann_whitney(first, second, alt, level)?,
+            "U",
+            "Hodges–Lehmann shift",
+        ),
         Method::WilcoxonSignedRank => {
             let shifted: Vec<f64> = diffs.iter().map(|d| d - reference).collect();
             let mut r = wilcoxon_signed_rank(&shifted, alt, level)?;
@@ -349,15 +425,30 @@ fn run_method(m: Method, alt: Alternative, level: f64, first: &[f64], second: &[
             r.interval.high = r.interval.high.map(|v| v + reference);
             rank_result(m, r, "W+", "Hodges–Lehmann estimate")
         }
-        Method::Checked => return Err(StatsError::BadParameter("`checked` is resolved before a test runs")),
+        Method::Checked => {
+            return Err(StatsError::BadParameter(
+                "`checked` is resolved before a test runs",
+            ))
+        }
     })
 }
 
 #[allow(clippy::too_many_arguments)]
-fn equivalence(method: Method, alpha: f64, low: f64, high: f64, first: &[f64], second: &[f64], diffs: &[f64], reference: f64) -> std::result::Result<EquivalenceResult, StatsError> {
+fn equivalence(
+    method: Method,
+    alpha: f64,
+    low: f64,
+    high: f64,
+    first: &[f64],
+    second: &[f64],
+    diffs: &[f64],
+    reference: f64,
+) -> std::result::Result<EquivalenceResult, StatsError> {
     use stats::equivalence as eq;
     let t = match method {
-        Method::StudentT | Method::WelchT => eq::tost_two_sample(first, second, low, high, alpha, method == Method::WelchT)?,
+        Method::StudentT | Method::WelchT => {
+            eq::tost_two_sample(first, second, low, high, alpha, method == Method::WelchT)?
+        }
         _ => eq::tost_one_sample(diffs, reference, low, high, alpha)?,
     };
     Ok(EquivalenceResult {
@@ -385,7 +476,12 @@ pub fn plot_set(label: &str, x: &[f64]) -> PlotData {
         (x.to_vec(), false)
     } else {
         let step = (n - 1) as f64 / (PLOT_POINTS - 1) as f64;
-        ((0..PLOT_POINTS).map(|i| sorted[((i as f64) * step).round() as usize]).collect(), true)
+        (
+            (0..PLOT_POINTS)
+                .map(|i| sorted[((i as f64) * step).round() as usize])
+                .collect(),
+            true,
+        )
     };
     let (bin_edges, bin_counts) = histogram(&sorted, PLOT_BINS);
     PlotData {
@@ -405,7 +501,9 @@ fn histogram(sorted: &[f64], bins: usize) -> (Vec<f64>, Vec<u64>) {
         return (vec![lo, hi], vec![sorted.len() as u64]);
     }
     let width = (hi - lo) / bins as f64;
-    let edges: Vec<f64> = (0..=bins).map(|i| if i == bins { hi } else { lo + width * i as f64 }).collect();
+    let edges: Vec<f64> = (0..=bins)
+        .map(|i| if i == bins { hi } else { lo + width * i as f64 })
+        .collect();
     let mut counts = vec![0u64; bins];
     for &v in sorted {
         let k = (((v - lo) / width) as usize).min(bins - 1);
@@ -414,22 +512,42 @@ fn histogram(sorted: &[f64], bins: usize) -> (Vec<f64>, Vec<u64>) {
     (edges, counts)
 }
 
-fn plot_data(h: &Hypothesis, labels: &[String; 2], first: &[f64], second: &[f64], diffs: &[f64]) -> (Vec<PlotData>, Option<PairedPlot>) {
+fn plot_data(
+    h: &Hypothesis,
+    labels: &[String; 2],
+    first: &[f64],
+    second: &[f64],
+    diffs: &[f64],
+) -> (Vec<PlotData>, Option<PairedPlot>) {
     match h.design {
-        Design::Independent => (vec![plot_set(&labels[0], first), plot_set(&labels[1], second)], None),
+        Design::Independent => (
+            vec![plot_set(&labels[0], first), plot_set(&labels[1], second)],
+            None,
+        ),
         Design::OneSample => (vec![plot_set(&labels[0], first)], None),
         Design::Paired => {
             let n = first.len();
             let (pairs, sampled) = if n <= PLOT_PAIRS {
-                (first.iter().zip(second).map(|(a, b)| [*a, *b]).collect(), false)
+                (
+                    first.iter().zip(second).map(|(a, b)| [*a, *b]).collect(),
+                    false,
+                )
             } else {
                 let step = n as f64 / PLOT_PAIRS as f64;
-                ((0..PLOT_PAIRS).map(|i| {
-                    let k = ((i as f64) * step) as usize;
-                    [first[k], second[k]]
-                }).collect(), true)
+                (
+                    (0..PLOT_PAIRS)
+                        .map(|i| {
+                            let k = ((i as f64) * step) as usize;
+                            [first[k], second[k]]
+                        })
+                        .collect(),
+                    true,
+                )
             };
-            (vec![plot_set("difference", diffs)], Some(PairedPlot { pairs, sampled }))
+            (
+                vec![plot_set("difference", diffs)],
+                Some(PairedPlot { pairs, sampled }),
+            )
         }
     }
 }

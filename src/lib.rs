@@ -6,13 +6,16 @@
 #![warn(missing_docs)]
 
 pub mod analysis;
+pub mod cli;
 pub mod data;
 pub mod error;
 pub mod lock;
 pub mod output;
+pub mod pipeline;
 pub mod plan;
 pub mod render;
 pub mod results;
 pub mod stats;
 pub mod values;
+pub mod verify;
 pub mod witness;

@@ -39,7 +39,10 @@ pub fn create_new(path: &Path, bytes: &[u8]) -> Result<()> {
     let _ = std::fs::remove_file(&tmp);
     res.map_err(|e| {
         if e.kind() == std::io::ErrorKind::AlreadyExists {
-            Failure::input(format!("{} already exists; it is never overwritten", path.display()))
+            Failure::input(format!(
+                "{} already exists; it is never overwritten",
+                path.display()
+            ))
         } else {
             Failure::io("create", path, &e)
         }
@@ -47,7 +50,10 @@ pub fn create_new(path: &Path, bytes: &[u8]) -> Result<()> {
 }
 
 fn temp_name(path: &Path) -> PathBuf {
-    let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
     path.with_file_name(format!(".{name}.partial-{}", std::process::id()))
 }
 
@@ -63,7 +69,8 @@ impl OutDir {
     /// Opens (creating if needed) an output folder. Refuses a folder that
     /// holds files attest did not write, unless `force`.
     pub fn open(dir: &Path, force: bool) -> Result<OutDir> {
-        std::fs::create_dir_all(dir).map_err(|e| Failure::io("create the output folder", dir, &e))?;
+        std::fs::create_dir_all(dir)
+            .map_err(|e| Failure::io("create the output folder", dir, &e))?;
         let known: BTreeSet<String> = std::fs::read_to_string(dir.join(MANIFEST))
             .map(|s| s.lines().map(str::to_string).collect())
             .unwrap_or_default();
@@ -108,12 +115,22 @@ impl OutDir {
     }
 }
 
-fn collect_foreign(root: &Path, dir: &Path, known: &BTreeSet<String>, out: &mut Vec<String>) -> Result<()> {
-    let entries = std::fs::read_dir(dir).map_err(|e| Failure::io("read the output folder", dir, &e))?;
+fn collect_foreign(
+    root: &Path,
+    dir: &Path,
+    known: &BTreeSet<String>,
+    out: &mut Vec<String>,
+) -> Result<()> {
+    let entries =
+        std::fs::read_dir(dir).map_err(|e| Failure::io("read the output folder", dir, &e))?;
     let mut names: Vec<_> = entries.filter_map(|e| e.ok()).map(|e| e.path()).collect();
     names.sort();
     for p in names {
-        let rel = p.strip_prefix(root).unwrap_or(&p).to_string_lossy().replace('\\', "/");
+        let rel = p
+            .strip_prefix(root)
+            .unwrap_or(&p)
+            .to_string_lossy()
+            .replace('\\', "/");
         if rel == MANIFEST || rel.contains(".partial-") {
             continue;
         }

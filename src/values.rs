@@ -18,7 +18,9 @@ use crate::error::{Failure, Result};
 use pulldown_cmark::{Event, Parser, Tag, TagEnd};
 use std::collections::BTreeMap;
 
-const DIGITS: [&str; 10] = ["Zero", "One", "Two", "Three", "Four", "Five", "Six", "Seven", "Eight", "Nine"];
+const DIGITS: [&str; 10] = [
+    "Zero", "One", "Two", "Three", "Four", "Five", "Six", "Seven", "Eight", "Nine",
+];
 
 /// Turns any text into a run of ASCII letters: digits become words, other
 /// characters separate words and are dropped, each word is capitalised.
@@ -59,8 +61,10 @@ impl Values {
     /// the collision message.
     pub fn add(&mut self, name: String, origin: String, markdown: String) -> Result<()> {
         if name.is_empty() || !name.chars().all(|c| c.is_ascii_alphabetic()) {
-            return Err(Failure::input(format!("{origin} gives the value name \"{name}\", which has no letters to use"))
-                .help("give the analysis file and the hypothesis ids names with letters, e.g. H1"));
+            return Err(Failure::input(format!(
+                "{origin} gives the value name \"{name}\", which has no letters to use"
+            ))
+            .help("give the analysis file and the hypothesis ids names with letters, e.g. H1"));
         }
         if let Some((other, _)) = self.map.get(&name) {
             return Err(Failure::input(format!("two values would be named \\{name}: {other} and {origin}"))
@@ -77,10 +81,18 @@ impl Values {
 
     /// `values.tex`: one `\newcommand` per value.
     pub fn to_tex(&self, title: &str) -> String {
-        let mut s = String::from("% Named values written by attest; regenerate with `attest run`, do not edit.\n");
-        s.push_str(&format!("% Analysis: {}\n", title.replace(['\n', '\r'], " ")));
+        let mut s = String::from(
+            "% Named values written by attest; regenerate with `attest run`, do not edit.\n",
+        );
+        s.push_str(&format!(
+            "% Analysis: {}\n",
+            title.replace(['\n', '\r'], " ")
+        ));
         for (k, v) in self.iter() {
-            s.push_str(&format!("\\newcommand{{\\{k}}}{{{}}}\n", markdown_to_latex(v)));
+            s.push_str(&format!(
+                "\\newcommand{{\\{k}}}{{{}}}\n",
+                markdown_to_latex(v)
+            ));
         }
         s
     }
@@ -147,22 +159,34 @@ mod tests {
     #[test]
     fn names_are_letters_only() {
         assert_eq!(name("loaves", "H1", "t"), "LoavesHOneT");
-        assert_eq!(name("tutoring-2026", "H10", "p"), "TutoringTwoZeroTwoSixHOneZeroP");
+        assert_eq!(
+            name("tutoring-2026", "H10", "p"),
+            "TutoringTwoZeroTwoSixHOneZeroP"
+        );
         assert_eq!(name("my_study", "h-1", "mean long"), "MyStudyHOneMeanLong");
     }
 
     #[test]
     fn collisions_are_errors() {
         let mut v = Values::default();
-        v.add(name("a", "H1", "t"), "H1 t".into(), "x".into()).unwrap();
-        let e = v.add(name("a", "H-1", "t"), "H-1 t".into(), "y".into()).unwrap_err();
+        v.add(name("a", "H1", "t"), "H1 t".into(), "x".into())
+            .unwrap();
+        let e = v
+            .add(name("a", "H-1", "t"), "H-1 t".into(), "y".into())
+            .unwrap_err();
         assert_eq!(e.what, "two values would be named \\AHOneT: H1 t and H-1 t");
     }
 
     #[test]
     fn markdown_becomes_latex() {
         // LaTeX's ten special characters (common practice: The TeXbook, ch. 7).
-        assert_eq!(latex_escape("50% & $5 #1 a_b {x} ~ ^"), "50\\% \\& \\$5 \\#1 a\\_b \\{x\\} \\textasciitilde{} \\textasciicircum{}");
-        assert_eq!(markdown_to_latex("*t*(97.31) = −2.71"), "\\textit{t}(97.31) = \\ensuremath{-}2.71");
+        assert_eq!(
+            latex_escape("50% & $5 #1 a_b {x} ~ ^"),
+            "50\\% \\& \\$5 \\#1 a\\_b \\{x\\} \\textasciitilde{} \\textasciicircum{}"
+        );
+        assert_eq!(
+            markdown_to_latex("*t*(97.31) = −2.71"),
+            "\\textit{t}(97.31) = \\ensuremath{-}2.71"
+        );
     }
 }

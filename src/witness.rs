@@ -28,8 +28,15 @@ pub enum Witness {
 }
 
 fn git(dir: &Path, args: &[&str]) -> Option<String> {
-    let out = Command::new("git").arg("-C").arg(dir).args(args).output().ok()?;
-    out.status.success().then(|| String::from_utf8_lossy(&out.stdout).trim().to_string())
+    let out = Command::new("git")
+        .arg("-C")
+        .arg(dir)
+        .args(args)
+        .output()
+        .ok()?;
+    out.status
+        .success()
+        .then(|| String::from_utf8_lossy(&out.stdout).trim().to_string())
 }
 
 /// Asks git about `lock_path`.
@@ -45,7 +52,10 @@ pub fn witness(lock_path: &Path) -> Witness {
         return Witness::NoGit;
     }
     let name = name.to_string_lossy();
-    match git(dir, &["log", "--diff-filter=A", "--format=%H %cI", "--", &name]) {
+    match git(
+        dir,
+        &["log", "--diff-filter=A", "--format=%H %cI", "--", &name],
+    ) {
         Some(s) if !s.is_empty() => {
             let last = s.lines().last().unwrap_or_default();
             let (commit, date) = last.split_once(' ').unwrap_or((last, ""));

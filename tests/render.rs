@@ -240,6 +240,8 @@ fn h1() -> HypothesisResult {
             }],
             missing: [0, 1],
             incomplete_pairs: 0,
+            no_group: 0,
+            unpaired: [0, 0],
             analysed: [24, 23],
         },
         plot: vec![
@@ -325,6 +327,8 @@ fn h2() -> HypothesisResult {
             rules: vec![],
             missing: [1, 1],
             incomplete_pairs: 1,
+            no_group: 0,
+            unpaired: [1, 1],
             analysed: [18, 18],
         },
         plot: vec![
@@ -360,6 +364,7 @@ fn scenario() -> Results {
             data_existed: false,
             data_sha256: None,
             intact: true,
+            witness: attest::witness::Witness::NoGit,
         }),
         changes: vec![],
         deviations: vec![],

@@ -142,12 +142,17 @@ mod tests {
 
     #[test]
     fn diff_names_leaf_fields() {
-        let a: Value = serde_json::json!({"alpha": 0.05, "hypotheses": [{"id": "H1", "method": "welch-t"}]});
-        let b: Value = serde_json::json!({"alpha": 0.1, "hypotheses": [{"id": "H1", "method": "student-t"}]});
+        let a: Value =
+            serde_json::json!({"alpha": 0.05, "hypotheses": [{"id": "H1", "method": "welch-t"}]});
+        let b: Value =
+            serde_json::json!({"alpha": 0.1, "hypotheses": [{"id": "H1", "method": "student-t"}]});
         let d = diff(&a, &b);
         assert_eq!(d.len(), 2);
         assert_eq!(d[0].field, "alpha");
-        assert_eq!((d[0].locked.as_str(), d[0].current.as_str()), ("0.05", "0.1"));
+        assert_eq!(
+            (d[0].locked.as_str(), d[0].current.as_str()),
+            ("0.05", "0.1")
+        );
         assert_eq!(d[1].field, "hypotheses[H1].method");
     }
 }

@@ -30,7 +30,8 @@ pub fn load(path: &Path) -> Result<AnalysisFile> {
 /// Parses and validates analysis-file text; `path` is used in messages.
 pub fn parse(path: &Path, text: &str) -> Result<AnalysisFile> {
     let text_no_bom = text.strip_prefix('\u{feff}').unwrap_or(text);
-    let raw: RawFile = toml::from_str(text_no_bom).map_err(|e| toml_failure(path, text_no_bom, &e))?;
+    let raw: RawFile =
+        toml::from_str(text_no_bom).map_err(|e| toml_failure(path, text_no_bom, &e))?;
     Checker {
         path,
         text: text_no_bom,
@@ -54,7 +55,9 @@ fn toml_failure(path: &Path, text: &str, e: &toml::de::Error) -> Failure {
     } else if msg.contains("missing field") {
         f = f.help("add the key; see the README's analysis-file reference");
     } else {
-        f = f.help("fix the TOML syntax at that position (strings need quotes, tables need [brackets])");
+        f = f.help(
+            "fix the TOML syntax at that position (strings need quotes, tables need [brackets])",
+        );
     }
     f
 }
@@ -117,12 +120,21 @@ impl Checker<'_> {
         })?;
         if *version.get_ref() != i64::from(FORMAT_VERSION) {
             return Err(self
-                .at(version, format!("format version {} is not supported", version.get_ref()))
-                .help(format!("this build of attest reads `attest = {FORMAT_VERSION}`")));
+                .at(
+                    version,
+                    format!("format version {} is not supported", version.get_ref()),
+                )
+                .help(format!(
+                    "this build of attest reads `attest = {FORMAT_VERSION}`"
+                )));
         }
         let title = match raw.title {
             Some(t) if !t.get_ref().trim().is_empty() => t.into_inner(),
-            Some(t) => return Err(self.at(&t, "`title` is empty").help("give the study a title")),
+            Some(t) => {
+                return Err(self
+                    .at(&t, "`title` is empty")
+                    .help("give the study a title"))
+            }
             None => {
                 return Err(self
                     .top("the analysis file has no `title`")
@@ -180,9 +192,11 @@ impl Checker<'_> {
             let hyp = self.hypothesis(h)?;
             if !ids.insert(hyp.id.clone()) {
                 let (l, c) = line_col(self.text, span_holder.start);
-                return Err(Failure::input(format!("hypothesis id `{}` is used twice", hyp.id))
-                    .at(self.path, l, Some(c))
-                    .help("give every hypothesis its own id, e.g. H1, H2"));
+                return Err(
+                    Failure::input(format!("hypothesis id `{}` is used twice", hyp.id))
+                        .at(self.path, l, Some(c))
+                        .help("give every hypothesis its own id, e.g. H1, H2"),
+                );
             }
             hypotheses.push(hyp);
         }
@@ -220,7 +234,10 @@ impl Checker<'_> {
                     Ok(x)
                 } else {
                     Err(self
-                        .at(s, format!("`{key}` must lie strictly between 0 and 1, found {x}"))
+                        .at(
+                            s,
+                            format!("`{key}` must lie strictly between 0 and 1, found {x}"),
+                        )
                         .help(format!("write a proportion, e.g. `{key} = {default}`")))
                 }
             }
@@ -247,10 +264,17 @@ impl Checker<'_> {
             .help(help))
     }
 
-    fn text_key(&self, v: Option<Spanned<String>>, key: &str, block: &Spanned<impl Sized>) -> Result<String> {
+    fn text_key(
+        &self,
+        v: Option<Spanned<String>>,
+        key: &str,
+        block: &Spanned<impl Sized>,
+    ) -> Result<String> {
         match v {
             Some(s) if !s.get_ref().trim().is_empty() => Ok(s.into_inner()),
-            Some(s) => Err(self.at(&s, format!("`{key}` is empty")).help(format!("give `{key}` a value"))),
+            Some(s) => Err(self
+                .at(&s, format!("`{key}` is empty"))
+                .help(format!("give `{key}` a value"))),
             None => Err(self
                 .at(block, format!("this block has no `{key}`"))
                 .help(format!("add `{key} = \"…\"`"))),
@@ -301,12 +325,19 @@ impl Checker<'_> {
                 let v = s.get_ref();
                 let mut chars = v.chars();
                 match (chars.next(), chars.next()) {
-                    (Some(ch), None) if ch != '"' && ch != '\n' && ch != '\r' && ch.is_ascii() => ch,
+                    (Some(ch), None) if ch != '"' && ch != '\n' && ch != '\r' && ch.is_ascii() => {
+                        ch
+                    }
                     _ if v == "\\t" => '\t',
                     _ => {
                         return Err(self
-                            .at(s, format!("`delimiter` must be one ASCII character, found \"{v}\""))
-                            .help("write for example `delimiter = \";\"` or `delimiter = \"\\t\"`"))
+                            .at(
+                                s,
+                                format!("`delimiter` must be one ASCII character, found \"{v}\""),
+                            )
+                            .help(
+                                "write for example `delimiter = \";\"` or `delimiter = \"\\t\"`",
+                            ))
                     }
                 }
             }
@@ -318,15 +349,20 @@ impl Checker<'_> {
                 "," => ',',
                 other => {
                     return Err(self
-                        .at(s, format!("`decimal` must be \".\" or \",\", found \"{other}\""))
+                        .at(
+                            s,
+                            format!("`decimal` must be \".\" or \",\", found \"{other}\""),
+                        )
                         .help("use `decimal = \",\"` for numbers written like 12,5"))
                 }
             },
         };
         if decimal == delimiter && format == DataFormat::Delimited {
-            return Err(Failure::input("the decimal mark and the delimiter are the same character")
-                .at(self.path, l, Some(c))
-                .help("files with decimal commas usually use `delimiter = \";\"`"));
+            return Err(Failure::input(
+                "the decimal mark and the delimiter are the same character",
+            )
+            .at(self.path, l, Some(c))
+            .help("files with decimal commas usually use `delimiter = \";\"`"));
         }
         if format == DataFormat::Delimited {
             if let Some(s) = &d.sheet {
@@ -340,9 +376,15 @@ impl Checker<'_> {
             format,
             delimiter,
             decimal,
-            missing: d
-                .missing
-                .unwrap_or_else(|| vec![String::new(), "NA".into(), "N/A".into(), "NaN".into(), ".".into()]),
+            missing: d.missing.unwrap_or_else(|| {
+                vec![
+                    String::new(),
+                    "NA".into(),
+                    "N/A".into(),
+                    "NaN".into(),
+                    ".".into(),
+                ]
+            }),
             sheet: d.sheet.map(Spanned::into_inner),
         })
     }
@@ -351,21 +393,35 @@ impl Checker<'_> {
         let reason = self.text_key(e.get_ref().reason.clone(), "reason", &e)?;
         let column = self.text_key(e.get_ref().column.clone(), "column", &e)?;
         let r = e.get_ref();
-        let kinds = [r.below.is_some() || r.above.is_some(), r.values.is_some(), r.outlier.is_some()]
-            .iter()
-            .filter(|b| **b)
-            .count();
+        let kinds = [
+            r.below.is_some() || r.above.is_some(),
+            r.values.is_some(),
+            r.outlier.is_some(),
+        ]
+        .iter()
+        .filter(|b| **b)
+        .count();
         if kinds != 1 {
             return Err(self
-                .at(&e, "an exclusion rule needs exactly one of: `below`/`above`, `values`, `outlier`")
+                .at(
+                    &e,
+                    "an exclusion rule needs exactly one of: `below`/`above`, `values`, `outlier`",
+                )
                 .help("split combined rules into separate [[exclude]] blocks"));
         }
         let rule = if let Some(o) = &r.outlier {
-            let limit = match &r.limit {
-                Some(l) if l.get_ref().0 > 0.0 && l.get_ref().0.is_finite() => l.get_ref().0,
-                Some(l) => return Err(self.at(l, "`limit` must be a positive number").help("2.5 or 3 are usual for median-distance, 1.5 for tukey-fences")),
-                None => return Err(self.at(o, "an outlier rule needs a `limit`").help("add e.g. `limit = 3` (median-distance) or `limit = 1.5` (tukey-fences)")),
-            };
+            let limit =
+                match &r.limit {
+                    Some(l) if l.get_ref().0 > 0.0 && l.get_ref().0.is_finite() => l.get_ref().0,
+                    Some(l) => {
+                        return Err(self
+                            .at(l, "`limit` must be a positive number")
+                            .help("2.5 or 3 are usual for median-distance, 1.5 for tukey-fences"))
+                    }
+                    None => return Err(self.at(o, "an outlier rule needs a `limit`").help(
+                        "add e.g. `limit = 3` (median-distance) or `limit = 1.5` (tukey-fences)",
+                    )),
+                };
             let by = r.by.as_ref().map(|b| b.get_ref().clone());
             match o.get_ref().as_str() {
                 "median-distance" => ExcludeKind::MedianDistance { limit, by },
@@ -378,16 +434,24 @@ impl Checker<'_> {
             }
         } else {
             if let Some(l) = &r.limit {
-                return Err(self.at(l, "`limit` only applies to an outlier rule").help("remove `limit`, or add `outlier = \"median-distance\"`"));
+                return Err(self
+                    .at(l, "`limit` only applies to an outlier rule")
+                    .help("remove `limit`, or add `outlier = \"median-distance\"`"));
             }
             if let Some(b) = &r.by {
-                return Err(self.at(b, "`by` only applies to an outlier rule").help("remove `by`"));
+                return Err(self
+                    .at(b, "`by` only applies to an outlier rule")
+                    .help("remove `by`"));
             }
             if let Some(v) = &r.values {
                 if v.get_ref().is_empty() {
-                    return Err(self.at(v, "`values` is empty").help("list the cell texts that exclude a row"));
+                    return Err(self
+                        .at(v, "`values` is empty")
+                        .help("list the cell texts that exclude a row"));
                 }
-                ExcludeKind::Values { values: v.get_ref().clone() }
+                ExcludeKind::Values {
+                    values: v.get_ref().clone(),
+                }
             } else {
                 let below = r.below.as_ref().map(|b| b.get_ref().0);
                 let above = r.above.as_ref().map(|b| b.get_ref().0);
@@ -399,7 +463,11 @@ impl Checker<'_> {
                 ExcludeKind::Range { below, above }
             }
         };
-        Ok(ExcludeRule { reason, column, rule })
+        Ok(ExcludeRule {
+            reason,
+            column,
+            rule,
+        })
     }
 
     fn deviation(&self, d: Spanned<RawDeviation>) -> Result<Deviation> {
@@ -430,7 +498,8 @@ impl Checker<'_> {
                     .help("add `design = \"independent\"`, \"paired\" or \"one-sample\""))
             }
         };
-        let method_names: Vec<(&str, Method)> = Method::ALL.iter().map(|m| (m.as_str(), *m)).collect();
+        let method_names: Vec<(&str, Method)> =
+            Method::ALL.iter().map(|m| (m.as_str(), *m)).collect();
         let method = match &r.method {
             Some(m) => self.choice(m, "method", &method_names)?,
             None => {
@@ -440,10 +509,24 @@ impl Checker<'_> {
             }
         };
         if !method.fits(design) {
-            let fitting: Vec<&str> = Method::ALL.iter().filter(|m| m.fits(design)).map(|m| m.as_str()).collect();
+            let fitting: Vec<&str> = Method::ALL
+                .iter()
+                .filter(|m| m.fits(design))
+                .map(|m| m.as_str())
+                .collect();
             return Err(self
-                .at(r.method.as_ref().expect("method present"), format!("method \"{}\" does not fit a {} design", method.as_str(), design.as_str()))
-                .help(format!("for this design choose one of: {}", fitting.join(", "))));
+                .at(
+                    r.method.as_ref().expect("method present"),
+                    format!(
+                        "method \"{}\" does not fit a {} design",
+                        method.as_str(),
+                        design.as_str()
+                    ),
+                )
+                .help(format!(
+                    "for this design choose one of: {}",
+                    fitting.join(", ")
+                )));
         }
         let alternative = match &r.alternative {
             None => Alternative::TwoSided,
@@ -462,7 +545,9 @@ impl Checker<'_> {
             (Comparison::PairedColumns { .. }, Some(o)) => {
                 return Err(self
                     .at(o, "`outcome` is not used with `first`/`second` columns")
-                    .help("remove `outcome`; the two measurement columns are `first` and `second`"))
+                    .help(
+                        "remove `outcome`; the two measurement columns are `first` and `second`",
+                    ))
             }
             (Comparison::PairedColumns { .. }, None) => None,
             (_, Some(o)) if !o.get_ref().trim().is_empty() => Some(o.get_ref().clone()),
@@ -476,14 +561,21 @@ impl Checker<'_> {
             None => None,
             Some(e) => {
                 let v = e.get_ref();
-                if v.len() != 2 || !(v[0].0 < v[1].0) || !v[0].0.is_finite() || !v[1].0.is_finite() {
+                if v.len() != 2 || !(v[0].0 < v[1].0) || !v[0].0.is_finite() || !v[1].0.is_finite()
+                {
                     return Err(self
                         .at(e, "`equivalence` must be two numbers [low, high] with low < high")
                         .help("write the smallest differences that matter, e.g. `equivalence = [-5, 5]` in the outcome's units"));
                 }
                 if method.is_rank() || method == Method::Checked {
                     return Err(self
-                        .at(e, format!("equivalence bounds need a t method; \"{}\" is not one", method.as_str()))
+                        .at(
+                            e,
+                            format!(
+                                "equivalence bounds need a t method; \"{}\" is not one",
+                                method.as_str()
+                            ),
+                        )
                         .help("use welch-t or student-t (independent), paired-t or one-sample-t"));
                 }
                 if alternative != Alternative::TwoSided {
@@ -509,7 +601,13 @@ impl Checker<'_> {
         })
     }
 
-    fn comparison(&self, id: &str, design: Design, r: &RawHypothesis, h: &Spanned<RawHypothesis>) -> Result<Comparison> {
+    fn comparison(
+        &self,
+        id: &str,
+        design: Design,
+        r: &RawHypothesis,
+        h: &Spanned<RawHypothesis>,
+    ) -> Result<Comparison> {
         // Keys that this design does not use are errors, named one by one.
         let used: &[&str] = match design {
             Design::Independent => &["group", "levels"],
@@ -530,19 +628,37 @@ impl Checker<'_> {
             if let Some(span) = span {
                 if !used.contains(key) {
                     let (l, c) = line_col(self.text, span.start);
-                    return Err(Failure::input(format!("`{key}` is not used by a {} design", design.as_str()))
-                        .at(self.path, l, Some(c))
-                        .help(format!("remove `{key}`; a {} hypothesis uses: {}", design.as_str(), used.join(", "))));
+                    return Err(Failure::input(format!(
+                        "`{key}` is not used by a {} design",
+                        design.as_str()
+                    ))
+                    .at(self.path, l, Some(c))
+                    .help(format!(
+                        "remove `{key}`; a {} hypothesis uses: {}",
+                        design.as_str(),
+                        used.join(", ")
+                    )));
                 }
             }
         }
         let need = |v: &Option<Spanned<String>>, key: &str| -> Result<String> {
             match v {
                 Some(s) if !s.get_ref().trim().is_empty() => Ok(s.get_ref().clone()),
-                Some(s) => Err(self.at(s, format!("`{key}` is empty")).help(format!("name a column in `{key}`"))),
+                Some(s) => Err(self
+                    .at(s, format!("`{key}` is empty"))
+                    .help(format!("name a column in `{key}`"))),
                 None => Err(self
-                    .at(h, format!("hypothesis {id} ({} design) has no `{key}`", design.as_str()))
-                    .help(format!("add `{key}`; this design uses: {}", used.join(", ")))),
+                    .at(
+                        h,
+                        format!(
+                            "hypothesis {id} ({} design) has no `{key}`",
+                            design.as_str()
+                        ),
+                    )
+                    .help(format!(
+                        "add `{key}`; this design uses: {}",
+                        used.join(", ")
+                    ))),
             }
         };
         let levels = || -> Result<[String; 2]> {
@@ -573,11 +689,20 @@ impl Checker<'_> {
                 levels: levels()?,
             },
             Design::OneSample => match &r.reference {
-                Some(v) if v.get_ref().0.is_finite() => Comparison::Reference { reference: v.get_ref().0 },
-                Some(v) => return Err(self.at(v, "`reference` must be a finite number").help("write the published value, e.g. `reference = 3.5`")),
+                Some(v) if v.get_ref().0.is_finite() => Comparison::Reference {
+                    reference: v.get_ref().0,
+                },
+                Some(v) => {
+                    return Err(self
+                        .at(v, "`reference` must be a finite number")
+                        .help("write the published value, e.g. `reference = 3.5`"))
+                }
                 None => {
                     return Err(self
-                        .at(h, format!("hypothesis {id} (one-sample design) has no `reference`"))
+                        .at(
+                            h,
+                            format!("hypothesis {id} (one-sample design) has no `reference`"),
+                        )
                         .help("add the value to compare against, e.g. `reference = 3.5`"))
                 }
             },

@@ -192,7 +192,7 @@ fn make(
     if drawn.is_err() {
         buf = placeholder(size);
     }
-    let file = format!("{stem}-{role}.svg");
+    let file = format!("figures/{stem}-{role}.svg");
     let svg = label_svg(&buf, &format!("{stem}-{role}"), title, &desc);
     Figure {
         role,

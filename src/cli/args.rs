@@ -1,0 +1,91 @@
+//! Argument definitions. Help text, the man page and shell completions are
+//! all generated from these structures.
+
+use clap::{Parser, Subcommand};
+use std::path::PathBuf;
+
+/// Preregister a two-group comparison, lock it, run it unchanged, and
+/// render an audit-ready report.
+#[derive(Debug, Parser)]
+#[command(name = "attest", version, about, long_about = None, propagate_version = true)]
+pub struct Cli {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The commands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Check an analysis file without reading any data.
+    Check {
+        /// The analysis file (TOML).
+        file: PathBuf,
+    },
+    /// Seal the plan: write `<stem>.lock` next to the analysis file and the
+    /// preregistration document into the output folder. Never overwrites.
+    Lock {
+        /// The analysis file (TOML).
+        file: PathBuf,
+        /// Folder for plan.md and plan.html [default: out/<stem>/].
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Use templates from this folder where it has them.
+        #[arg(long, value_name = "DIR")]
+        templates: Option<PathBuf>,
+        /// Write into an output folder that holds files attest did not write.
+        #[arg(long)]
+        force: bool,
+    },
+    /// Run locked plans against their data and write the reports. Takes
+    /// analysis files or folders (every *.toml inside, in path order);
+    /// several analyses run in parallel, each into out/<stem>/.
+    Run {
+        /// Analysis files (TOML) or folders of them.
+        #[arg(required = true, value_name = "PATH")]
+        paths: Vec<PathBuf>,
+        /// Output folder for a single analysis [default: out/<stem>/].
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Run without a lock; every output is stamped "not preregistered".
+        #[arg(long)]
+        unlocked: bool,
+        /// Use templates from this folder where it has them.
+        #[arg(long, value_name = "DIR")]
+        templates: Option<PathBuf>,
+        /// Write into an output folder that holds files attest did not write.
+        #[arg(long)]
+        force: bool,
+        /// Write nothing; fail (exit 2) if the outputs a run would write
+        /// differ from those already in the output folder. For CI pipelines
+        /// and thesis builds.
+        #[arg(long, conflicts_with = "force")]
+        expect_same: bool,
+        /// Print nothing but errors and lock warnings.
+        #[arg(long, short)]
+        quiet: bool,
+    },
+    /// Check that a report reproduces: same plan, lock, data and output bytes.
+    Verify {
+        /// A report folder written by `attest run`, or its results.json.
+        report: PathBuf,
+        /// The analysis file [default: the one the results name, looked up
+        /// in the current folder and in analyses/].
+        #[arg(long, value_name = "FILE")]
+        plan: Option<PathBuf>,
+        /// Templates the report was rendered with, if not the built-in ones.
+        #[arg(long, value_name = "DIR")]
+        templates: Option<PathBuf>,
+    },
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use clap::CommandFactory;
+
+    #[test]
+    fn clap_definitions_are_consistent() {
+        Cli::command().debug_assert();
+    }
+}

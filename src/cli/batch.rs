@@ -1,0 +1,135 @@
+//! Several analyses in one command: run in parallel, a progress bar on a
+//! terminal, and a summary table at the end. Every analysis that can
+//! produce its outputs does, whatever happens to the others.
+
+use crate::error::{Kind, Result};
+use crate::pipeline::{self, RunOptions};
+use crate::results::{Decision, LockState};
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+use rayon::prelude::*;
+use std::io::IsTerminal;
+use std::path::PathBuf;
+
+/// One analysis' line in the summary.
+struct Row {
+    file: String,
+    status: String,
+    hypotheses: String,
+    problem: String,
+    kind: Option<Kind>,
+}
+
+/// Runs (or compares, with `expect_same`) every analysis and prints the table.
+pub fn run(files: &[PathBuf], opts: &RunOptions, expect_same: bool, quiet: bool) -> Result<i32> {
+    let bar = if quiet || !std::io::stderr().is_terminal() {
+        ProgressBar::with_draw_target(Some(files.len() as u64), ProgressDrawTarget::hidden())
+    } else {
+        ProgressBar::new(files.len() as u64)
+    };
+    bar.set_style(
+        ProgressStyle::with_template("{bar:30} {pos}/{len} {msg}")
+            .unwrap_or_else(|_| ProgressStyle::default_bar()),
+    );
+    let rows: Vec<Row> = files
+        .par_iter()
+        .map(|f| {
+            let row = one(f, opts, expect_same);
+            bar.inc(1);
+            row
+        })
+        .collect();
+    bar.finish_and_clear();
+    let worst = rows
+        .iter()
+        .filter_map(|r| r.kind)
+        .map(Kind::exit_code)
+        .max()
+        .unwrap_or(0);
+    if !quiet || worst != 0 {
+        println!("{}", table(&rows));
+    }
+    Ok(worst)
+}
+
+fn one(file: &PathBuf, opts: &RunOptions, expect_same: bool) -> Row {
+    let name = file.display().to_string();
+    let outcome = if expect_same {
+        pipeline::unchanged(file, opts).map(|(r, diff)| (r, diff))
+    } else {
+        pipeline::run(file, opts).map(|o| (o.results, Vec::new()))
+    };
+    match outcome {
+        Ok((r, diff)) => {
+            let supported = r
+                .hypotheses
+                .iter()
+                .filter(|h| h.decision == Decision::Reject)
+                .count();
+            let lock_problem = match r.lock {
+                LockState::Deviates => Some("deviates from the lock"),
+                LockState::Unlocked => Some("not preregistered"),
+                LockState::AsLocked => None,
+            };
+            let (status, problem, kind) = if !diff.is_empty() {
+                (
+                    "changed",
+                    format!("differs: {}", diff.join(", ")),
+                    Some(Kind::Verification),
+                )
+            } else {
+                (
+                    if expect_same { "same" } else { "ok" },
+                    lock_problem.unwrap_or("").to_string(),
+                    None,
+                )
+            };
+            Row {
+                file: name,
+                status: status.into(),
+                hypotheses: format!("{} ({} rejected)", r.hypotheses.len(), supported),
+                problem,
+                kind,
+            }
+        }
+        Err(f) => Row {
+            file: name,
+            status: "failed".into(),
+            hypotheses: "–".into(),
+            problem: f.what.clone(),
+            kind: Some(f.kind),
+        },
+    }
+}
+
+fn table(rows: &[Row]) -> String {
+    let w = |f: fn(&Row) -> &str, head: &str| {
+        rows.iter()
+            .map(|r| f(r).chars().count())
+            .max()
+            .unwrap_or(0)
+            .max(head.len())
+    };
+    let (wf, ws, wh) = (
+        w(|r| &r.file, "file"),
+        w(|r| &r.status, "status"),
+        w(|r| &r.hypotheses, "hypotheses"),
+    );
+    let mut s = format!(
+        "{:<wf$}  {:<ws$}  {:<wh$}  worst problem\n",
+        "file", "status", "hypotheses"
+    );
+    for r in rows {
+        s.push_str(&format!(
+            "{:<wf$}  {:<ws$}  {:<wh$}  {}\n",
+            r.file, r.status, r.hypotheses, r.problem
+        ));
+    }
+    let failed = rows.iter().filter(|r| r.kind.is_some()).count();
+    s.push_str(&format!(
+        "{} analyses, {} ok, {} with problems",
+        rows.len(),
+        rows.len() - failed,
+        failed
+    ));
+    s
+}

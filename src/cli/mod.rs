@@ -1,0 +1,105 @@
+//! The command line: argument definitions (clap) and the terminal lines
+//! each command prints. The work itself is done in `pipeline`.
+
+mod args;
+mod batch;
+mod terminal;
+
+pub use args::{Cli, Command};
+
+use crate::error::{Failure, Result};
+use crate::pipeline::{self, RunOptions};
+use clap::Parser;
+use std::io::Write;
+
+/// Parses the command line, runs the command, and returns the exit code.
+pub fn main() -> i32 {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            // clap prints help/version to stdout (exit 0) and usage errors to
+            // stderr; usage errors are bad input (exit 1).
+            let code = if e.use_stderr() { 1 } else { 0 };
+            let _ = e.print();
+            return code;
+        }
+    };
+    match dispatch(cli) {
+        Ok(code) => code,
+        Err(f) => {
+            eprintln!("{f}");
+            f.kind.exit_code()
+        }
+    }
+}
+
+/// Writes one block of text and a newline to standard output.
+fn say(s: &str) -> Result<()> {
+    let mut out = std::io::stdout().lock();
+    writeln!(out, "{s}")
+        .map_err(|e| Failure::internal(format!("cannot write to the terminal: {e}")))
+}
+
+fn dispatch(cli: Cli) -> Result<i32> {
+    match cli.command {
+        Command::Check { file } => {
+            let f = pipeline::check(&file)?;
+            say(&terminal::plan_summary(&f))?;
+        }
+        Command::Lock {
+            file,
+            out,
+            templates,
+            force,
+        } => {
+            let o = pipeline::lock(&file, out.as_deref(), templates.as_deref(), force)?;
+            say(&terminal::locked(&o))?;
+        }
+        Command::Run {
+            paths,
+            out,
+            unlocked,
+            templates,
+            force,
+            expect_same,
+            quiet,
+        } => {
+            let files = pipeline::expand(&paths)?;
+            if files.len() > 1 && out.is_some() {
+                return Err(Failure::input(
+                    "--out names one folder, but several analyses were given",
+                )
+                .help("leave out --out; each analysis writes to out/<stem>/"));
+            }
+            let opts = RunOptions {
+                out,
+                unlocked,
+                templates,
+                force,
+            };
+            if files.len() == 1 && !expect_same {
+                let o = pipeline::run(&files[0], &opts)?;
+                for line in terminal::lock_warnings(&o.results) {
+                    eprintln!("{line}");
+                }
+                if !quiet {
+                    say(&terminal::run_summary(&o))?;
+                }
+            } else {
+                return batch::run(&files, &opts, expect_same, quiet);
+            }
+        }
+        Command::Verify {
+            report,
+            plan,
+            templates,
+        } => {
+            let v = crate::verify::verify(&report, plan.as_deref(), templates.as_deref())?;
+            say(&terminal::verification(&v))?;
+            if !v.passed() {
+                return Ok(crate::error::Kind::Verification.exit_code());
+            }
+        }
+    }
+    Ok(0)
+}

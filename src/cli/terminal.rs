@@ -1,0 +1,205 @@
+//! What the commands print on the terminal: short, aligned, in attest's
+//! own voice. Numbers are formatted by the same APA rules as the reports.
+
+use crate::pipeline::{LockOutcome, RunOutcome};
+use crate::plan::{AnalysisFile, Comparison};
+use crate::render::apa;
+use crate::results::{Decision, LockState, Results};
+
+/// `attest check`: a one-screen summary of the plan.
+pub fn plan_summary(f: &AnalysisFile) -> String {
+    let p = &f.plan;
+    let mut s = format!(
+        "plan: {} — \"{}\"\n  alpha {}  confidence {}  correction {}  check_alpha {}\n  data: {}\n",
+        f.path.display(),
+        p.title,
+        p.alpha,
+        p.confidence,
+        p.correction.as_str(),
+        p.check_alpha,
+        p.data.path
+    );
+    for r in &p.exclude {
+        s.push_str(&format!("  exclude: {} ({})\n", r.reason, r.column));
+    }
+    for h in &p.hypotheses {
+        let what = match &h.comparison {
+            Comparison::Groups { group, levels } => format!(
+                "{} by {group}: {} vs {}",
+                h.outcome.as_deref().unwrap_or(""),
+                levels[0],
+                levels[1]
+            ),
+            Comparison::PairedColumns { first, second } => format!("{first} − {second} (paired)"),
+            Comparison::PairedRows {
+                condition, levels, ..
+            } => format!(
+                "{} by {condition}: {} − {} (paired)",
+                h.outcome.as_deref().unwrap_or(""),
+                levels[0],
+                levels[1]
+            ),
+            Comparison::Reference { reference } => {
+                format!("{} vs {reference}", h.outcome.as_deref().unwrap_or(""))
+            }
+        };
+        let eq = h
+            .equivalence
+            .map(|[a, b]| format!("  equivalence [{a}, {b}]"))
+            .unwrap_or_default();
+        s.push_str(&format!(
+            "  {}  {}  {}  {}{}\n",
+            h.id,
+            h.method.as_str(),
+            h.alternative.as_str(),
+            what,
+            eq
+        ));
+    }
+    s.push_str("plan is valid; no data were read");
+    s
+}
+
+/// `attest lock`: what was sealed and where.
+pub fn locked(o: &LockOutcome) -> String {
+    let mut s = format!(
+        "locked: {}\n  plan sha256 {}\n  at {}\n",
+        o.lock_path.display(),
+        o.lock.plan_sha256,
+        o.lock.locked_at
+    );
+    s.push_str(if o.lock.data.existed {
+        "  the data file already existed at lock time (recorded in the lock)\n"
+    } else {
+        "  the data file did not exist yet at lock time\n"
+    });
+    for p in o.written.iter().skip(1) {
+        s.push_str(&format!("plan document: {}\n", p.display()));
+    }
+    s.push_str(&match &o.witness {
+        crate::witness::Witness::NoGit => "no git work tree here: keep the lock somewhere others can date it (e-mail it, or commit it to version control)".to_string(),
+        crate::witness::Witness::NotCommitted => format!(
+            "not committed yet: `git add {0} && git commit -m \"Lock the analysis plan\"` gives the lock an outside date",
+            o.lock_path.display()
+        ),
+        crate::witness::Witness::Committed { commit, date } => format!("already in git: {commit} ({date})"),
+    });
+    s
+}
+
+/// Warnings about the lock, one line per changed field.
+pub fn lock_warnings(r: &Results) -> Vec<String> {
+    let mut out = Vec::new();
+    if let Some(rec) = &r.lock_record {
+        if !rec.intact {
+            out.push(
+                "lock: the lock file's content does not match its own hash; it was edited by hand"
+                    .to_string(),
+            );
+        }
+    }
+    if r.lock == LockState::Deviates && !r.changes.is_empty() {
+        let fields: Vec<String> = r
+            .changes
+            .iter()
+            .map(|c| format!("{} ({} → {})", c.field, c.locked, c.current))
+            .collect();
+        out.push(format!(
+            "lock: plan differs from the lock in {}",
+            fields.join(", ")
+        ));
+        if r.deviations.is_empty() {
+            out.push(
+                "lock: no [[deviation]] is declared; add one saying what changed and why"
+                    .to_string(),
+            );
+        }
+    }
+    if r.lock == LockState::Unlocked {
+        out.push(
+            "lock: running without a lock; outputs are stamped \"not preregistered\"".to_string(),
+        );
+    }
+    out
+}
+
+/// `attest run`: one line per hypothesis, then where the report is.
+pub fn run_summary(o: &RunOutcome) -> String {
+    let r = &o.results;
+    let mut s = String::new();
+    let width = r
+        .hypotheses
+        .iter()
+        .map(|h| h.id.chars().count())
+        .max()
+        .unwrap_or(2);
+    for h in &r.hypotheses {
+        let est = &h.estimate;
+        let eff = &h.effect;
+        let verdict = match (&h.equivalence, h.decision) {
+            (Some(_), Decision::Reject) => "equivalent within the bounds",
+            (Some(_), Decision::Retain) => "not shown equivalent",
+            (None, Decision::Reject) => "supported",
+            (None, Decision::Retain) => "not supported",
+        };
+        let effect_value = if matches!(
+            eff.name.as_str(),
+            "rank-biserial" | "probability-of-superiority"
+        ) {
+            apa::bounded(eff.value, 2)
+        } else {
+            apa::two(eff.value)
+        };
+        s.push_str(&format!(
+            "{:<width$}  {}  diff {} {}  {} {}  p {}  {}\n",
+            h.id,
+            h.method,
+            apa::two(est.value),
+            apa::bounds(est.ci_low, est.ci_high, apa::two),
+            effect_symbol(&eff.name),
+            effect_value,
+            apa::p_number(h.p_adjusted),
+            verdict,
+        ));
+    }
+    s.push_str(&format!(
+        "report: {}",
+        o.out_dir.join("report.html").display()
+    ));
+    s
+}
+
+/// `attest verify`: one line per item, then the verdict.
+pub fn verification(v: &crate::verify::Verification) -> String {
+    let mut s = format!("verify: {}\n", v.analysis.display());
+    let width = v
+        .items
+        .iter()
+        .map(|i| i.what.chars().count())
+        .max()
+        .unwrap_or(4);
+    for i in &v.items {
+        match &i.changed {
+            None => s.push_str(&format!("  {:<width$}  same\n", i.what)),
+            Some(how) => s.push_str(&format!("  {:<width$}  changed: {how}\n", i.what)),
+        }
+    }
+    s.push_str(if v.passed() {
+        "the report reproduces"
+    } else {
+        "the report does NOT reproduce"
+    });
+    s
+}
+
+/// The short symbol of an effect size on the terminal.
+fn effect_symbol(name: &str) -> &str {
+    match name {
+        "cohen-d" => "d",
+        "hedges-g" => "g",
+        "d-z" => "dz",
+        "rank-biserial" => "r",
+        "probability-of-superiority" => "PS",
+        other => other,
+    }
+}

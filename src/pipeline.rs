@@ -1,0 +1,302 @@
+//! The one place that drives the steps in order: plan → lock → data →
+//! stats → results → render → files. Each command of the CLI is one
+//! function here; none of them prints anything.
+
+use crate::analysis;
+use crate::data;
+use crate::error::{Failure, Result};
+use crate::lock::{self, LockFile};
+use crate::output::{create_new, OutDir};
+use crate::plan::canonical::{canonical_value, diff, plan_hash, sha256_hex};
+use crate::plan::{validate, AnalysisFile};
+use crate::render;
+use crate::results::*;
+use rayon::prelude::*;
+use std::path::{Path, PathBuf};
+
+/// Options of `attest run`.
+#[derive(Clone, Debug, Default)]
+pub struct RunOptions {
+    /// Output folder; `out/<stem>/` under the current folder when absent.
+    pub out: Option<PathBuf>,
+    /// Run without a lock; outputs are stamped "not preregistered".
+    pub unlocked: bool,
+    /// A folder of the user's own templates.
+    pub templates: Option<PathBuf>,
+    /// Write into a folder that holds files attest did not write.
+    pub force: bool,
+}
+
+/// What `run` produced.
+pub struct RunOutcome {
+    /// The results model.
+    pub results: Results,
+    /// Where the outputs are.
+    pub out_dir: PathBuf,
+    /// The files written, in order.
+    pub written: Vec<PathBuf>,
+}
+
+/// What `lock` produced.
+pub struct LockOutcome {
+    /// The sealed lock.
+    pub lock: LockFile,
+    /// Where it was written.
+    pub lock_path: PathBuf,
+    /// The preregistration documents written.
+    pub written: Vec<PathBuf>,
+    /// What version control says about the new lock.
+    pub witness: crate::witness::Witness,
+}
+
+/// `attest check`: parse and validate, touching no data.
+pub fn check(path: &Path) -> Result<AnalysisFile> {
+    validate::load(path)
+}
+
+/// The default output folder for an analysis file: `out/<stem>/`.
+pub fn default_out(path: &Path) -> PathBuf {
+    let stem = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "analysis".into());
+    PathBuf::from("out").join(stem)
+}
+
+fn plan_dir(path: &Path) -> PathBuf {
+    match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    }
+}
+
+/// `attest lock`: validate, seal, and render the preregistration document.
+pub fn lock(
+    path: &Path,
+    out: Option<&Path>,
+    templates: Option<&Path>,
+    force: bool,
+) -> Result<LockOutcome> {
+    let file = validate::load(path)?;
+    let lock_path = lock::lock_path(path);
+    if lock_path.exists() {
+        return Err(Failure::input(format!("{} is already locked ({} exists)", path.display(), lock_path.display()))
+            .help("a lock is never overwritten; to change the plan, edit it and declare a [[deviation]], or start a new analysis file"));
+    }
+    let data_path = plan_dir(path).join(&file.plan.data.path);
+    let sealed = LockFile::seal(&file, &data_path)?;
+    let docs = render::render_plan(&sealed, templates)?;
+    create_new(&lock_path, sealed.to_text().as_bytes())?;
+    let out_dir = out
+        .map(Path::to_path_buf)
+        .unwrap_or_else(|| default_out(path));
+    let mut dir = OutDir::open(&out_dir, force)?;
+    let written = vec![
+        lock_path.clone(),
+        dir.write("plan.md", docs.plan_md.as_bytes())?,
+        dir.write("plan.html", docs.plan_html.as_bytes())?,
+    ];
+    dir.finish()?;
+    let witness = crate::witness::witness(&lock_path);
+    Ok(LockOutcome {
+        lock: sealed,
+        lock_path,
+        written,
+        witness,
+    })
+}
+
+/// Reads the lock of an analysis file and compares it with the plan.
+fn lock_state(
+    file: &AnalysisFile,
+    unlocked: bool,
+) -> Result<(
+    LockState,
+    Option<LockRecord>,
+    Vec<crate::plan::canonical::FieldChange>,
+)> {
+    let lock_path = lock::lock_path(&file.path);
+    if unlocked {
+        return Ok((LockState::Unlocked, None, Vec::new()));
+    }
+    if !lock_path.exists() {
+        return Err(Failure::input(format!("{} has no lock ({} is missing)", file.path.display(), lock_path.display()))
+            .help(format!("seal the plan first with `attest lock {}`, or pass --unlocked to run it as not preregistered", file.path.display())));
+    }
+    let (lock, bytes) = LockFile::read(&lock_path)?;
+    let record = LockRecord {
+        sha256: sha256_hex(&bytes),
+        locked_at: lock.locked_at.clone(),
+        locked_with: lock.version.clone(),
+        plan_sha256: lock.plan_sha256.clone(),
+        data_existed: lock.data.existed,
+        data_sha256: lock.data.sha256.clone(),
+        intact: lock.intact(),
+        witness: crate::witness::witness(&lock_path),
+    };
+    let changes = diff(&lock.plan_value(), &canonical_value(&file.plan));
+    let state = if changes.is_empty() && record.intact {
+        LockState::AsLocked
+    } else {
+        LockState::Deviates
+    };
+    Ok((state, Some(record), changes))
+}
+
+/// Runs every hypothesis of an analysis file and builds the results
+/// model, writing nothing.
+pub fn compute(path: &Path, unlocked: bool) -> Result<Results> {
+    let file = validate::load(path)?;
+    let (state, record, changes) = lock_state(&file, unlocked)?;
+    let dir = plan_dir(path);
+    let ds = data::load(&file.plan, &dir)?;
+    let plan = &file.plan;
+    let mut hyps = plan
+        .hypotheses
+        .par_iter()
+        .map(|h| {
+            let sel = data::select(&ds, plan, h)?;
+            analysis::analyse(plan, h, sel)
+        })
+        .collect::<Result<Vec<_>>>()?;
+    analysis::adjust_all(plan, &mut hyps);
+    let analysis_file = lock::file_name(path);
+    let command = if unlocked {
+        format!("attest run --unlocked {analysis_file}")
+    } else {
+        format!("attest run {analysis_file}")
+    };
+    Ok(Results {
+        tool: "attest".into(),
+        version: env!("CARGO_PKG_VERSION").into(),
+        plan_sha256: plan_hash(plan),
+        lock: state,
+        lock_record: record,
+        changes,
+        deviations: file.deviations.clone(),
+        plan: plan.clone(),
+        data: DataRecord {
+            path: plan.data.path.clone(),
+            sha256: ds.sha256.clone(),
+            rows: ds.rows,
+            outside_plan_folder: outside(&dir, &ds.path),
+        },
+        hypotheses: hyps,
+        command,
+        analysis_file,
+    })
+}
+
+/// Whether `data` lies outside the folder tree of the analysis file.
+fn outside(plan_dir: &Path, data: &Path) -> bool {
+    match (plan_dir.canonicalize(), data.canonicalize()) {
+        (Ok(d), Ok(f)) => !f.starts_with(d),
+        _ => true,
+    }
+}
+
+/// The bytes of every output of a run, by relative file name, in the
+/// order they are written (`results.json` last, so its presence means the
+/// run completed).
+pub fn render_outputs(
+    results: &Results,
+    templates: Option<&Path>,
+) -> Result<Vec<(String, Vec<u8>)>> {
+    // Figure names already carry their folder (`figures/…`), as the
+    // Markdown links them.
+    let rendered = render::render_report(results, templates)?;
+    let mut json = serde_json::to_string_pretty(results)
+        .map_err(|e| Failure::internal(format!("cannot serialise results: {e}")))?;
+    json.push('\n');
+    let mut files: Vec<(String, Vec<u8>)> = rendered
+        .figures
+        .into_iter()
+        .map(|(name, svg)| (name, svg.into_bytes()))
+        .collect();
+    files.push(("report.md".into(), rendered.report_md.into_bytes()));
+    files.push(("report.html".into(), rendered.report_html.into_bytes()));
+    files.push(("results.json".into(), json.into_bytes()));
+    Ok(files)
+}
+
+/// `attest run` for one analysis file.
+pub fn run(path: &Path, opts: &RunOptions) -> Result<RunOutcome> {
+    let results = compute(path, opts.unlocked)?;
+    let files = render_outputs(&results, opts.templates.as_deref())?;
+    let out_dir = opts.out.clone().unwrap_or_else(|| default_out(path));
+    let mut dir = OutDir::open(&out_dir, opts.force)?;
+    let mut written = Vec::new();
+    for (name, bytes) in &files {
+        written.push(dir.write(name, bytes)?);
+    }
+    dir.finish()?;
+    Ok(RunOutcome {
+        results,
+        out_dir,
+        written,
+    })
+}
+
+/// Expands files and folders into analysis files: a folder contributes
+/// every `*.toml` below it, sorted by path, so batch order is stable.
+pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>> {
+    let mut out = Vec::new();
+    for p in paths {
+        if p.is_dir() {
+            let mut found = Vec::new();
+            collect_toml(p, &mut found)?;
+            found.sort();
+            if found.is_empty() {
+                return Err(Failure::input(format!(
+                    "{} holds no analysis files (*.toml)",
+                    p.display()
+                )));
+            }
+            out.extend(found);
+        } else {
+            out.push(p.clone());
+        }
+    }
+    let mut stems = std::collections::BTreeMap::new();
+    for p in &out {
+        if let Some(other) = stems.insert(default_out(p), p.clone()) {
+            return Err(Failure::input(format!(
+                "{} and {} would both write to {}",
+                other.display(),
+                p.display(),
+                default_out(p).display()
+            ))
+            .help("give the analysis files different names"));
+        }
+    }
+    Ok(out)
+}
+
+fn collect_toml(dir: &Path, out: &mut Vec<PathBuf>) -> Result<()> {
+    let entries = std::fs::read_dir(dir).map_err(|e| Failure::io("read the folder", dir, &e))?;
+    for e in entries.flatten() {
+        let p = e.path();
+        if p.is_dir() {
+            collect_toml(&p, out)?;
+        } else if p.extension().is_some_and(|x| x == "toml") {
+            out.push(p);
+        }
+    }
+    Ok(())
+}
+
+/// Compares what a run would write with what the output folder holds,
+/// writing nothing. Returns the names of files that differ or are missing.
+pub fn unchanged(path: &Path, opts: &RunOptions) -> Result<(Results, Vec<String>)> {
+    let results = compute(path, opts.unlocked)?;
+    let files = render_outputs(&results, opts.templates.as_deref())?;
+    let out_dir = opts.out.clone().unwrap_or_else(|| default_out(path));
+    let differing = files
+        .iter()
+        .filter(|(name, bytes)| {
+            std::fs::read(out_dir.join(name)).ok().as_deref() != Some(bytes.as_slice())
+        })
+        .map(|(name, _)| name.clone())
+        .collect();
+    Ok((results, differing))
+}
