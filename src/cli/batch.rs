@@ -8,7 +8,7 @@ use crate::results::{Decision, LockState};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use rayon::prelude::*;
 use std::io::IsTerminal;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 /// One analysis' line in the summary.
 struct Row {
@@ -51,10 +51,10 @@ pub fn run(files: &[PathBuf], opts: &RunOptions, expect_same: bool, quiet: bool)
     Ok(worst)
 }
 
-fn one(file: &PathBuf, opts: &RunOptions, expect_same: bool) -> Row {
+fn one(file: &Path, opts: &RunOptions, expect_same: bool) -> Row {
     let name = file.display().to_string();
     let outcome = if expect_same {
-        pipeline::unchanged(file, opts).map(|(r, diff)| (r, diff))
+        pipeline::unchanged(file, opts)
     } else {
         pipeline::run(file, opts).map(|o| (o.results, Vec::new()))
     };

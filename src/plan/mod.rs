@@ -32,7 +32,9 @@ pub struct AnalysisFile {
 }
 
 /// The validated, defaults-filled plan. Its serialised form is the
-/// canonical plan that the lock stores and hashes.
+/// canonical plan that the lock stores and hashes. Optional parts are
+/// left out of that form when absent, so a key added in a later version
+/// of the format leaves the hash of every existing plan unchanged.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Plan {
     /// File-format version (`attest = 1`).
@@ -42,6 +44,7 @@ pub struct Plan {
     /// Authors, in order.
     pub authors: Vec<String>,
     /// Free text shown in the preregistration.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub summary: Option<String>,
     /// Significance level for every hypothesis.
     pub alpha: f64,
@@ -75,6 +78,7 @@ pub struct DataSpec {
     /// Cell texts that mean "missing".
     pub missing: Vec<String>,
     /// Worksheet name for spreadsheets (first sheet when absent).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub sheet: Option<String>,
 }
 
@@ -261,6 +265,7 @@ pub struct Hypothesis {
     pub design: Design,
     /// The numeric outcome column (for paired wide layouts: absent, the two
     /// columns are in `comparison`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub outcome: Option<String>,
     /// Where the two sets of values come from.
     pub comparison: Comparison,
@@ -269,10 +274,13 @@ pub struct Hypothesis {
     /// The preregistered method.
     pub method: Method,
     /// Equivalence bounds `[low, high]` in raw units (TOST), if declared.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub equivalence: Option<[f64; 2]>,
     /// Axis label for figures (the outcome column name when absent).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub label: Option<String>,
     /// Measurement unit shown with values (e.g. "ml").
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub units: Option<String>,
     /// Whether to add the other methods for this design as robustness checks.
     pub robustness: bool,

@@ -56,7 +56,9 @@ pub fn normal_quantile(p: f64) -> f64 {
 }
 
 /// Wichura (1988), "Algorithm AS 241: The percentage points of the normal
-/// distribution", Applied Statistics 37(3), 477–484. PPND16.
+/// distribution", Applied Statistics 37(3), 477–484. PPND16. The
+/// coefficients are kept exactly as published.
+#[allow(clippy::inconsistent_digit_grouping, clippy::excessive_precision)]
 fn as241(p: f64) -> f64 {
     let q = p - 0.5;
     if q.abs() <= 0.425 {

@@ -1,0 +1,187 @@
+//! The reports of the committed demo analyses: golden snapshots, byte-for-
+//! byte determinism, self-containment, escaping of hostile labels, and a
+//! real-browser check that every inline figure has a size.
+
+mod common;
+
+use common::{copy_dir, root, Case};
+
+/// A temporary copy of `analyses/` (plans, locks, data).
+fn demos() -> Case {
+    let c = Case::new();
+    copy_dir(&root().join("analyses"), &c.path().join("analyses"));
+    c
+}
+
+const DEMOS: [&str; 6] = [
+    "commute",
+    "espresso",
+    "loaves",
+    "picking",
+    "thermostat",
+    "tutoring",
+];
+
+#[test]
+fn demo_reports_match_their_snapshots() {
+    let c = demos();
+    for name in DEMOS {
+        c.attest(&["run", "--quiet", &format!("analyses/{name}.toml")])
+            .success();
+        let md = c.read(&format!("out/{name}/report.md"));
+        let html = c.read(&format!("out/{name}/report.html"));
+        insta::assert_snapshot!(format!("demo_{name}_report_md"), md);
+        insta::assert_snapshot!(format!("demo_{name}_report_html"), html);
+    }
+}
+
+fn all_files(dir: &std::path::Path) -> Vec<(String, Vec<u8>)> {
+    let mut out = Vec::new();
+    let mut stack = vec![dir.to_path_buf()];
+    while let Some(d) = stack.pop() {
+        for e in std::fs::read_dir(&d).unwrap() {
+            let p = e.unwrap().path();
+            if p.is_dir() {
+                stack.push(p);
+            } else {
+                out.push((
+                    p.strip_prefix(dir).unwrap().display().to_string(),
+                    std::fs::read(&p).unwrap(),
+                ));
+            }
+        }
+    }
+    out.sort();
+    out
+}
+
+#[test]
+fn running_twice_gives_identical_bytes() {
+    let c = demos();
+    c.attest(&["run", "--quiet", "analyses/tutoring.toml", "--out", "first"])
+        .success();
+    c.attest(&[
+        "run",
+        "--quiet",
+        "analyses/tutoring.toml",
+        "--out",
+        "second",
+    ])
+    .success();
+    let (a, b) = (
+        all_files(&c.path().join("first")),
+        all_files(&c.path().join("second")),
+    );
+    assert!(
+        a.len() >= 8,
+        "expected report, results and figures, got {}",
+        a.len()
+    );
+    assert_eq!(a, b);
+}
+
+#[test]
+fn html_reports_load_nothing_from_outside() {
+    let c = demos();
+    for name in DEMOS {
+        c.attest(&["run", "--quiet", &format!("analyses/{name}.toml")])
+            .success();
+        for file in ["report.html", "plan.html"] {
+            let path = format!("out/{name}/{file}");
+            if !c.exists(&path) {
+                continue;
+            }
+            let html = c.read(&path);
+            assert!(
+                !html.contains("http://") && !html.contains("https://"),
+                "{path} names an outside resource"
+            );
+            assert!(
+                !html.to_lowercase().contains("<script"),
+                "{path} contains a script"
+            );
+            assert!(!html.contains("<link"), "{path} links a stylesheet");
+        }
+    }
+}
+
+#[test]
+fn hostile_labels_show_as_text() {
+    let c = Case::new();
+    c.write(
+        "a.toml",
+        r#"attest = 1
+title = "Escaping <b>check</b>"
+[data]
+path = "d.csv"
+[[hypothesis]]
+id = "H1"
+claim = "A claim with <img src=x onerror=alert(1)> in it."
+design = "independent"
+outcome = "y"
+group = "g"
+levels = ["<script>alert(1)</script>", "plain"]
+method = "welch-t"
+"#,
+    );
+    c.write("d.csv", "g,y\n<script>alert(1)</script>,1\n<script>alert(1)</script>,2\n<script>alert(1)</script>,4\nplain,3\nplain,5\nplain,8\n");
+    c.attest(&["run", "--unlocked", "a.toml"]).success();
+    let html = c.read("out/a/report.html");
+    assert!(
+        !html.contains("<script>alert"),
+        "a label passed through as markup"
+    );
+    assert!(
+        html.contains("&lt;script&gt;alert(1)&lt;/script&gt;"),
+        "the label is not shown as text"
+    );
+    assert!(
+        !html.contains("<img src=x"),
+        "a claim passed through as markup"
+    );
+    for (name, svg) in all_files(&c.path().join("out/a/figures")) {
+        let svg = String::from_utf8(svg).unwrap();
+        assert!(!svg.contains("<script>"), "{name} carries a script");
+    }
+}
+
+/// Renders a demo report in headless Chromium (Debian's package) and checks
+/// that every inline SVG figure has a non-zero rendered size. Skipped with a
+/// message where Chromium is absent, unless ATTEST_REQUIRE_BROWSER is set
+/// (as `.ci/run` does), in which case its absence fails the test.
+#[test]
+fn every_inline_figure_has_a_rendered_size() {
+    let chromium = std::path::Path::new("/usr/bin/chromium");
+    if !chromium.exists() {
+        assert!(
+            std::env::var_os("ATTEST_REQUIRE_BROWSER").is_none(),
+            "ATTEST_REQUIRE_BROWSER is set but /usr/bin/chromium is missing"
+        );
+        eprintln!("skipped: chromium not installed (apt-get install chromium to run this check)");
+        return;
+    }
+    let c = demos();
+    for name in ["loaves", "commute"] {
+        c.attest(&["run", "--quiet", &format!("analyses/{name}.toml")])
+            .success();
+        let report = c.path().join(format!("out/{name}/report.html"));
+        let out = std::process::Command::new("bash")
+            .arg(root().join("tests/browser/check_svgs.sh"))
+            .arg(&report)
+            .arg(c.path().join(format!("{name}.png")))
+            .output()
+            .unwrap();
+        let text = String::from_utf8_lossy(&out.stdout);
+        assert!(
+            out.status.success(),
+            "{name}: {text}\n{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let ok = text.lines().filter(|l| l.starts_with("ok: ")).count();
+        assert!(
+            ok >= 3,
+            "{name}: expected at least three measured figures:\n{text}"
+        );
+        assert!(!text.contains("FAIL"), "{text}");
+    }
+}
