@@ -306,3 +306,62 @@ fn a_file_that_is_not_a_workbook_is_refused() {
         "{e}"
     );
 }
+
+#[test]
+fn the_examples_in_docs_data_md_are_valid_plans() {
+    let doc =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/docs/data.md")).unwrap();
+    let blocks: Vec<&str> = doc
+        .split("```toml\n")
+        .skip(1)
+        .map(|b| b.split("```").next().unwrap_or(""))
+        .collect();
+    assert_eq!(blocks.len(), 2, "one [data] and one [[exclude]] example");
+    let hyp = INDEPENDENT
+        .replace("\"y\"", "\"volume_ml\"")
+        .replace("\"g\"", "\"proof\"");
+    let text = format!(
+        "attest = 1\ntitle = \"Doc\"\n{}\n{}\n{}",
+        blocks[0], blocks[1], hyp
+    );
+    let p = parse(Path::new("a.toml"), &text).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(p.plan.data.delimiter, ';');
+    assert_eq!(p.plan.exclude.len(), 3);
+}
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(300))]
+
+    /// Any bytes at all give either values or a positioned message, never a panic.
+    #[test]
+    fn any_bytes_give_values_or_a_message(body in proptest::collection::vec(
+        proptest::sample::select(vec![
+            &b"a"[..], b"b", b"c", b",", b";", b"\n", b"\r\n", b"\"", b"1", b"2.5", b"-", b"e", b"NA",
+            b"inf", b" ", b"\xff", b"\xef\xbb\xbf", b"1e400", b",,",
+        ]),
+        0..60,
+    ), paired in proptest::bool::ANY) {
+        let dir = tempfile::tempdir().unwrap();
+        let mut file = b"u,c,g,y\n".to_vec();
+        file.extend(body.concat());
+        std::fs::write(dir.path().join("d.csv"), &file).unwrap();
+        let hyp = if paired {
+            PAIRED_LONG.replace("[\"pre\", \"post\"]", "[\"a\", \"b\"]")
+        } else {
+            INDEPENDENT.to_string()
+        };
+        let rules = "[[exclude]]\nreason = \"r\"\ncolumn = \"y\"\noutlier = \"median-distance\"\nlimit = 2\nby = \"g\"\n\
+                     [[exclude]]\nreason = \"t\"\ncolumn = \"y\"\noutlier = \"tukey-fences\"\nlimit = 1.5\n";
+        let p = plan("d.csv", "", &format!("{rules}{hyp}"));
+        match run(dir.path(), &p) {
+            Ok(s) => {
+                let f = &s.flow;
+                for k in 0..2 {
+                    let removed: usize = f.rules.iter().map(|r| if k == 0 { r.first } else { r.second }).sum();
+                    proptest::prop_assert_eq!(f.read[k] - removed - f.missing[k] - f.unpaired[k], f.analysed[k]);
+                }
+            }
+            Err(e) => proptest::prop_assert!(e.starts_with("error: d.csv"), "{}", e),
+        }
+    }
+}

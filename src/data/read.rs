@@ -25,6 +25,25 @@ pub fn read_delimited(
     spec: &DataSpec,
     wanted: &[Use],
 ) -> Result<Table> {
+    read_in_chunks(
+        bytes,
+        source,
+        spec,
+        wanted,
+        rayon::current_num_threads(),
+        MIN_CHUNK,
+    )
+}
+
+/// [`read_delimited`] with the number of chunks and their smallest size given.
+fn read_in_chunks(
+    bytes: &[u8],
+    source: &str,
+    spec: &DataSpec,
+    wanted: &[Use],
+    threads: usize,
+    min_chunk: usize,
+) -> Result<Table> {
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     if bytes.iter().all(|b| b.is_ascii_whitespace()) {
         return Err(Failure::input("the data file is empty")
@@ -80,7 +99,7 @@ pub fn read_delimited(
         spec,
         source,
     };
-    let chunks = split(body);
+    let chunks = split(body, threads, min_chunk);
     let parts: Vec<Part> = if chunks.len() == 1 {
         vec![job.chunk(body, first_line)?]
     } else {
@@ -133,12 +152,11 @@ fn csv_failure(e: &csv::Error, source: &str, line: usize) -> Failure {
 
 /// Splits the body at line ends into about one chunk per thread, or keeps
 /// it whole when it is small or contains quotes.
-fn split(body: &[u8]) -> Vec<(usize, usize)> {
-    let threads = rayon::current_num_threads().max(1);
-    if body.len() < 2 * MIN_CHUNK || threads == 1 || body.contains(&b'"') {
+fn split(body: &[u8], threads: usize, min_chunk: usize) -> Vec<(usize, usize)> {
+    if body.len() < 2 * min_chunk || threads <= 1 || body.contains(&b'"') {
         return vec![(0, body.len())];
     }
-    let n = threads.min(body.len() / MIN_CHUNK).max(1);
+    let n = threads.min(body.len() / min_chunk.max(1)).max(1);
     let mut out = Vec::with_capacity(n);
     let mut a = 0;
     for k in 1..n {
@@ -339,4 +357,94 @@ fn join(
         }
     }
     (cols, lines)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn spec() -> DataSpec {
+        DataSpec {
+            path: "d.csv".into(),
+            format: crate::plan::DataFormat::Delimited,
+            delimiter: ',',
+            decimal: '.',
+            missing: vec![String::new(), "NA".into()],
+            sheet: None,
+        }
+    }
+
+    fn wanted() -> Vec<Use> {
+        vec![
+            Use {
+                name: "g".into(),
+                numeric: false,
+                text: true,
+            },
+            Use {
+                name: "y".into(),
+                numeric: true,
+                text: false,
+            },
+        ]
+    }
+
+    /// 3000 rows with CRLF ends, blank lines and levels first seen late.
+    fn file(bad_row: Option<usize>) -> Vec<u8> {
+        let mut s = String::from("id,g,y\r\n");
+        for i in 0..3000 {
+            let g = ["a", "b", "c", "d"][(i / 700).min(3)];
+            if i % 97 == 0 {
+                s.push_str("\r\n");
+            }
+            let y = if Some(i) == bad_row {
+                "x".to_string()
+            } else if i % 13 == 0 {
+                "NA".into()
+            } else {
+                format!("{}.5", i)
+            };
+            s.push_str(&format!("{i},{g},{y}\r\n"));
+        }
+        s.into_bytes()
+    }
+
+    #[test]
+    fn chunks_give_the_same_table_as_one_pass() {
+        let bytes = file(None);
+        let one = read_in_chunks(&bytes, "d.csv", &spec(), &wanted(), 1, MIN_CHUNK).unwrap();
+        let many = read_in_chunks(&bytes, "d.csv", &spec(), &wanted(), 7, 256).unwrap();
+        assert_eq!(one.rows, 3000);
+        assert_eq!(many.rows, 3000);
+        // NaN marks missing cells, so compare the numbers bit for bit.
+        let bits = |t: &Table| -> Vec<u64> {
+            t.columns["y"]
+                .numbers
+                .as_ref()
+                .unwrap()
+                .iter()
+                .map(|v| v.to_bits())
+                .collect()
+        };
+        assert_eq!(bits(&one), bits(&many));
+        assert_eq!(one.columns["g"], many.columns["g"]);
+        assert_eq!(one.lines, many.lines);
+        // Row 0 is on line 3 (header, then a blank line); row 97 follows another blank line.
+        assert_eq!(one.lines.line(0), 3);
+        assert_eq!(one.lines.line(97), 2 + 97 + 2);
+        assert_eq!(
+            one.columns["g"].text.as_ref().unwrap().levels,
+            ["a", "b", "c", "d"]
+        );
+    }
+
+    #[test]
+    fn chunks_report_the_same_line() {
+        // Row 2500 sits after 26 blank lines (rows 0, 97, …, 2425), so on line 2 + 2500 + 26.
+        let bytes = file(Some(2500));
+        let one = read_in_chunks(&bytes, "d.csv", &spec(), &wanted(), 1, MIN_CHUNK).unwrap_err();
+        let many = read_in_chunks(&bytes, "d.csv", &spec(), &wanted(), 7, 256).unwrap_err();
+        assert_eq!(one, many);
+        assert_eq!(one.location.unwrap().line, Some(2 + 2500 + 26));
+    }
 }
