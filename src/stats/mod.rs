@@ -15,6 +15,7 @@ pub mod mann_whitney;
 pub mod multiplicity;
 pub mod nct;
 pub mod normality;
+pub mod power;
 pub mod rank_exact;
 pub mod rank_tests;
 pub mod ranks;
