@@ -81,6 +81,20 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
     };
     let p = equivalence.as_ref().map_or(test.p, |e| e.p);
     let (plot, paired_plot) = plot_data(h, &labels, &first, &second, &diffs);
+    let planning = match &h.planning {
+        None => None,
+        Some(p) => {
+            let achieved = match h.design {
+                Design::Independent => vec![first.len(), second.len()],
+                _ => vec![first.len()],
+            };
+            Some(PlanningOutcome {
+                planned: crate::planning::planned(h, p, plan.alpha)?,
+                sensitivity: crate::planning::sensitivity(h, p, plan.alpha, &achieved),
+                achieved,
+            })
+        }
+    };
     Ok(HypothesisResult {
         id: h.id.clone(),
         claim: h.claim.clone(),
@@ -115,6 +129,7 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
         rows: flow,
         plot,
         paired_plot,
+        planning,
     })
 }
 

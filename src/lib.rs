@@ -13,6 +13,7 @@ pub mod lock;
 pub mod output;
 pub mod pipeline;
 pub mod plan;
+pub mod planning;
 pub mod render;
 pub mod results;
 pub mod stats;

@@ -51,7 +51,10 @@ pub struct LockOutcome {
 
 /// `attest check`: parse and validate, touching no data.
 pub fn check(path: &Path) -> Result<AnalysisFile> {
-    validate::load(path)
+    let file = validate::load(path)?;
+    // A sample-size plan that cannot be met is a plan error, found now.
+    planned_sizes(&file.plan)?;
+    Ok(file)
 }
 
 /// The default output folder for an analysis file: `out/<stem>/`.
@@ -85,7 +88,8 @@ pub fn lock(
     }
     let data_path = plan_dir(path).join(&file.plan.data.path);
     let sealed = LockFile::seal(&file, &data_path)?;
-    let docs = render::render_plan(&sealed, templates)?;
+    let planned = planned_sizes(&file.plan)?;
+    let docs = render::render_plan(&sealed, &planned, templates)?;
     create_new(&lock_path, sealed.to_text().as_bytes())?;
     let out_dir = out
         .map(Path::to_path_buf)
@@ -299,4 +303,17 @@ pub fn unchanged(path: &Path, opts: &RunOptions) -> Result<(Results, Vec<String>
         .map(|(name, _)| name.clone())
         .collect();
     Ok((results, differing))
+}
+
+/// The planned size of each hypothesis that states a sample-size plan.
+pub fn planned_sizes(plan: &crate::plan::Plan) -> Result<Vec<Option<crate::planning::Planned>>> {
+    plan.hypotheses
+        .iter()
+        .map(|h| {
+            h.planning
+                .as_ref()
+                .map(|p| crate::planning::planned(h, p, plan.alpha))
+                .transpose()
+        })
+        .collect()
 }

@@ -402,4 +402,19 @@ pub struct HypothesisResult {
     pub plot: Vec<PlotData>,
     /// Unit-level pairs for paired designs.
     pub paired_plot: Option<PairedPlot>,
+    /// Planned against achieved size, when the plan states a sample-size plan.
+    pub planning: Option<PlanningOutcome>,
+}
+
+/// The sample-size plan of a hypothesis next to what was achieved.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PlanningOutcome {
+    /// What the plan implied.
+    pub planned: crate::planning::Planned,
+    /// Sizes analysed: `[n₁, n₂]` or `[n]`.
+    pub achieved: Vec<usize>,
+    /// The smallest effect (d or d_z, Student's t) the achieved sample
+    /// detects with the planned power; reported instead of "observed
+    /// power", which is only a transform of p (Hoenig & Heisey 2001).
+    pub sensitivity: Option<f64>,
 }

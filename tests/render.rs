@@ -84,6 +84,7 @@ fn plan() -> Plan {
                 label: Some("fruit per plant".into()),
                 units: Some("kg".into()),
                 robustness: true,
+                planning: None,
             },
             Hypothesis {
                 id: "H2".into(),
@@ -100,6 +101,7 @@ fn plan() -> Plan {
                 label: Some("weekly hours".into()),
                 units: Some("h".into()),
                 robustness: false,
+                planning: None,
             },
         ],
     }
@@ -252,6 +254,7 @@ fn h1() -> HypothesisResult {
             plot("hand", &[2.1, 3.0, 3.5, 3.9, 4.2, 4.4, 4.8, 5.0, 5.6, 6.4]),
         ],
         paired_plot: None,
+        planning: None,
     }
 }
 
@@ -347,6 +350,7 @@ fn h2() -> HypothesisResult {
             ],
             sampled: false,
         }),
+        planning: None,
     }
 }
 
@@ -426,7 +430,7 @@ fn html_is_self_contained() {
         out.report_html.matches("<svg").count() >= 5,
         "figures are inline"
     );
-    let plan = render_plan(&lock_of(&scenario()), None).unwrap();
+    let plan = render_plan(&lock_of(&scenario()), &[], None).unwrap();
     assert_eq!(external_references(&plan.plan_html), Vec::<&str>::new());
 }
 
@@ -489,7 +493,7 @@ fn a_user_template_overrides_and_the_rest_fall_back() {
 fn a_broken_user_template_is_a_readable_error() {
     let dir = tempfile::tempdir().unwrap();
     std::fs::write(dir.path().join("plan.md.j2"), "{% for %}").unwrap();
-    let err = render_plan(&lock_of(&scenario()), Some(dir.path())).unwrap_err();
+    let err = render_plan(&lock_of(&scenario()), &[], Some(dir.path())).unwrap_err();
     assert!(
         err.to_string()
             .starts_with("error: template plan.md.j2 failed"),
@@ -502,8 +506,8 @@ fn rendering_is_deterministic() {
     let a = render_report(&scenario(), None).unwrap();
     let b = render_report(&scenario(), None).unwrap();
     assert_eq!(a, b);
-    let p = render_plan(&lock_of(&scenario()), None).unwrap();
-    let q = render_plan(&lock_of(&scenario()), None).unwrap();
+    let p = render_plan(&lock_of(&scenario()), &[], None).unwrap();
+    let q = render_plan(&lock_of(&scenario()), &[], None).unwrap();
     assert_eq!(p, q);
 }
 
@@ -568,7 +572,7 @@ fn snapshot_report() {
 
 #[test]
 fn snapshot_plan() {
-    let out = render_plan(&lock_of(&scenario()), None).unwrap();
+    let out = render_plan(&lock_of(&scenario()), &[], None).unwrap();
     insta::assert_snapshot!("plan_md", out.plan_md);
     insta::assert_snapshot!("plan_html", out.plan_html);
 }

@@ -65,6 +65,45 @@ pub enum Command {
         #[arg(long, short)]
         quiet: bool,
     },
+    /// Plan a sample size: give two of --effect, --power and --n, and the
+    /// third is solved for with the exact noncentral t distribution.
+    Power {
+        /// The design of the comparison.
+        #[arg(long, value_enum)]
+        design: DesignArg,
+        /// Smallest effect of interest: Cohen's d (d_z for paired designs),
+        /// as a size in the tested direction.
+        #[arg(long)]
+        effect: Option<f64>,
+        /// Target power, e.g. 0.9.
+        #[arg(long)]
+        power: Option<f64>,
+        /// Size of the first group (independent) or the number of pairs or
+        /// values.
+        #[arg(long)]
+        n: Option<usize>,
+        /// Significance level.
+        #[arg(long, default_value_t = 0.05)]
+        alpha: f64,
+        /// Sidedness of the planned test.
+        #[arg(long, value_enum, default_value = "two-sided")]
+        alternative: AlternativeArg,
+        /// Allocation ratio n₂/n₁ (independent designs).
+        #[arg(long, default_value_t = 1.0)]
+        ratio: f64,
+        /// Planned ratio of SDs (second/first): plan for Welch's test.
+        #[arg(long)]
+        sd_ratio: Option<f64>,
+        /// Check the answer by simulating this many studies.
+        #[arg(long, value_name = "N")]
+        simulate: Option<usize>,
+        /// Seed of the simulation.
+        #[arg(long, default_value_t = 1)]
+        seed: u64,
+        /// Print the answer as JSON.
+        #[arg(long)]
+        json: bool,
+    },
     /// Check that a report reproduces: same plan, lock, data and output bytes.
     Verify {
         /// A report folder written by `attest run`, or its results.json.
@@ -77,6 +116,48 @@ pub enum Command {
         #[arg(long, value_name = "DIR")]
         templates: Option<PathBuf>,
     },
+}
+
+/// Designs, as named on the command line.
+#[derive(Clone, Copy, Debug, clap::ValueEnum)]
+pub enum DesignArg {
+    /// Two independent groups.
+    Independent,
+    /// Two measurements on the same units.
+    Paired,
+    /// One sample against a reference value.
+    OneSample,
+}
+
+impl From<DesignArg> for crate::plan::Design {
+    fn from(d: DesignArg) -> Self {
+        match d {
+            DesignArg::Independent => crate::plan::Design::Independent,
+            DesignArg::Paired => crate::plan::Design::Paired,
+            DesignArg::OneSample => crate::plan::Design::OneSample,
+        }
+    }
+}
+
+/// Alternatives, as named on the command line.
+#[derive(Clone, Copy, Debug, clap::ValueEnum)]
+pub enum AlternativeArg {
+    /// The difference is not zero.
+    TwoSided,
+    /// The difference is greater than zero.
+    Greater,
+    /// The difference is less than zero.
+    Less,
+}
+
+impl From<AlternativeArg> for crate::stats::Alternative {
+    fn from(a: AlternativeArg) -> Self {
+        match a {
+            AlternativeArg::TwoSided => crate::stats::Alternative::TwoSided,
+            AlternativeArg::Greater => crate::stats::Alternative::Greater,
+            AlternativeArg::Less => crate::stats::Alternative::Less,
+        }
+    }
 }
 
 #[cfg(test)]

@@ -89,6 +89,44 @@ fn dispatch(cli: Cli) -> Result<i32> {
                 return batch::run(&files, &opts, expect_same, quiet);
             }
         }
+        Command::Power {
+            design,
+            effect,
+            power,
+            n,
+            alpha,
+            alternative,
+            ratio,
+            sd_ratio,
+            simulate,
+            seed,
+            json,
+        } => {
+            if !(alpha > 0.0 && alpha < 1.0) {
+                return Err(Failure::input(format!(
+                    "--alpha must lie strictly between 0 and 1, found {alpha}"
+                ))
+                .help("e.g. --alpha 0.05"));
+            }
+            let q = crate::planning::Question {
+                design: design.into(),
+                effect,
+                power,
+                n,
+                alpha,
+                alternative: alternative.into(),
+                ratio,
+                sd_ratio,
+                simulate,
+                seed,
+            };
+            let a = crate::planning::answer(&q)?;
+            if json {
+                say(&terminal::power_json(&a))?;
+            } else {
+                say(&crate::render::planning::answer_lines(&a).join("\n"))?;
+            }
+        }
         Command::Verify {
             report,
             plan,

@@ -203,3 +203,13 @@ fn effect_symbol(name: &str) -> &str {
         other => other,
     }
 }
+
+/// `attest power --json`: the answer, with `n` a number for one-group
+/// designs and an array of group sizes for independent ones.
+pub fn power_json(a: &crate::planning::Answer) -> String {
+    let mut v = serde_json::to_value(a).expect("an answer always serialises");
+    if a.n.len() == 1 {
+        v["n"] = serde_json::json!(a.n[0]);
+    }
+    serde_json::to_string_pretty(&v).expect("a value always serialises")
+}

@@ -284,6 +284,41 @@ pub struct Hypothesis {
     pub units: Option<String>,
     /// Whether to add the other methods for this design as robustness checks.
     pub robustness: bool,
+    /// The sample-size plan, if the analysis file gives one.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub planning: Option<Planning>,
+}
+
+/// The sample-size plan of one hypothesis (`[hypothesis.planning]`).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Planning {
+    /// Smallest effect of interest as Cohen's d (d_z for paired designs).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub effect: Option<f64>,
+    /// Smallest effect of interest as a raw difference (with `sd`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub difference: Option<f64>,
+    /// Expected standard deviation (of the differences for paired designs).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub sd: Option<f64>,
+    /// Target power.
+    pub power: f64,
+    /// Planned n₂/n₁ (independent designs; 1 otherwise).
+    pub ratio: f64,
+    /// Planned sd₂/sd₁ for Welch's test.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub sd_ratio: Option<f64>,
+}
+
+impl Planning {
+    /// The standardised effect planned for: `effect`, or `difference / sd`.
+    pub fn effect_size(&self) -> f64 {
+        match (self.effect, self.difference, self.sd) {
+            (Some(d), _, _) => d,
+            (None, Some(diff), Some(sd)) => diff / sd,
+            _ => f64::NAN,
+        }
+    }
 }
 
 /// A declared deviation from the locked plan (outside the hash).

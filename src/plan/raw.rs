@@ -147,6 +147,26 @@ pub struct RawHypothesis {
     pub units: Option<String>,
     /// Robustness analyses on/off.
     pub robustness: Option<bool>,
+    /// `[hypothesis.planning]`.
+    pub planning: Option<Spanned<RawPlanning>>,
+}
+
+/// `[hypothesis.planning]`.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawPlanning {
+    /// Cohen's d of the smallest effect of interest.
+    pub effect: Option<Spanned<Num>>,
+    /// Raw difference of interest.
+    pub difference: Option<Spanned<Num>>,
+    /// Expected SD.
+    pub sd: Option<Spanned<Num>>,
+    /// Target power.
+    pub power: Option<Spanned<Num>>,
+    /// n₂/n₁.
+    pub ratio: Option<Spanned<Num>>,
+    /// sd₂/sd₁ for Welch.
+    pub sd_ratio: Option<Spanned<Num>>,
 }
 
 /// `[[deviation]]`.

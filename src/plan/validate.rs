@@ -2,7 +2,7 @@
 //! cannot express, each failing with the file, line and column of the value
 //! at fault and a `help:` line saying what would be accepted.
 
-use super::raw::{Num, RawData, RawDeviation, RawExclude, RawFile, RawHypothesis};
+use super::raw::{Num, RawData, RawDeviation, RawExclude, RawFile, RawHypothesis, RawPlanning};
 use super::*;
 use crate::error::{line_col, Failure, Result};
 use std::collections::HashSet;
@@ -598,6 +598,80 @@ impl Checker<'_> {
             label: r.label.clone(),
             units: r.units.clone(),
             robustness: r.robustness.unwrap_or(true),
+            planning: match &r.planning {
+                Some(p) => Some(self.planning(design, method, p)?),
+                None => None,
+            },
+        })
+    }
+
+    fn planning(
+        &self,
+        design: Design,
+        method: Method,
+        p: &Spanned<RawPlanning>,
+    ) -> Result<Planning> {
+        let r = p.get_ref();
+        let positive = |v: &Option<Spanned<Num>>, key: &str| -> Result<Option<f64>> {
+            match v {
+                None => Ok(None),
+                Some(s) if s.get_ref().0.is_finite() && s.get_ref().0 > 0.0 => Ok(Some(s.get_ref().0)),
+                Some(s) => Err(self
+                    .at(s, format!("`{key}` must be a positive number"))
+                    .help("write the size of the effect in the tested direction, e.g. 0.4; the direction comes from `alternative`")),
+            }
+        };
+        let effect = positive(&r.effect, "effect")?;
+        let difference = positive(&r.difference, "difference")?;
+        let sd = positive(&r.sd, "sd")?;
+        match (effect, difference, sd) {
+            (Some(_), None, None) | (None, Some(_), Some(_)) => {}
+            _ => {
+                return Err(self
+                    .at(p, "planning needs the smallest effect of interest: either `effect` (Cohen's d) or both `difference` and `sd`")
+                    .help("e.g. `effect = 0.4`, or `difference = 20` with `sd = 50` in the outcome's units"))
+            }
+        }
+        let power = match &r.power {
+            Some(s) if s.get_ref().0 > 0.0 && s.get_ref().0 < 1.0 => s.get_ref().0,
+            Some(s) => {
+                return Err(self
+                    .at(s, "`power` must lie strictly between 0 and 1")
+                    .help("0.8 or 0.9 are usual"))
+            }
+            None => {
+                return Err(self
+                    .at(p, "planning needs a target `power`")
+                    .help("add e.g. `power = 0.9`"))
+            }
+        };
+        let ratio = positive(&r.ratio, "ratio")?;
+        let sd_ratio = positive(&r.sd_ratio, "sd_ratio")?;
+        if design != Design::Independent {
+            if let Some(s) = r.ratio.as_ref().or(r.sd_ratio.as_ref()) {
+                return Err(self
+                    .at(
+                        s,
+                        "`ratio` and `sd_ratio` apply to independent designs only",
+                    )
+                    .help("remove them from this planning block"));
+            }
+        }
+        if sd_ratio.is_some() && method != Method::WelchT {
+            return Err(self
+                .at(
+                    r.sd_ratio.as_ref().expect("sd_ratio present"),
+                    "`sd_ratio` is used only when the method is welch-t",
+                )
+                .help("remove `sd_ratio`, or preregister welch-t"));
+        }
+        Ok(Planning {
+            effect,
+            difference,
+            sd,
+            power,
+            ratio: ratio.unwrap_or(1.0),
+            sd_ratio,
         })
     }
 

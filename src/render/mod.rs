@@ -14,6 +14,7 @@ pub mod apa;
 pub mod figures;
 pub mod markdown;
 mod plan_doc;
+pub mod planning;
 mod report;
 pub mod sentence;
 
@@ -51,8 +52,15 @@ pub fn render_report(
 }
 
 /// Renders the preregistration document from a lock.
-pub fn render_plan(lock: &crate::lock::LockFile, templates: Option<&Path>) -> Result<PlanDoc> {
-    plan_doc::render(lock, &environment(templates))
+///
+/// `planned` holds, for each hypothesis in plan order, the sample size its
+/// `[hypothesis.planning]` implies (computed by the caller).
+pub fn render_plan(
+    lock: &crate::lock::LockFile,
+    planned: &[Option<crate::planning::Planned>],
+    templates: Option<&Path>,
+) -> Result<PlanDoc> {
+    plan_doc::render(lock, planned, &environment(templates))
 }
 
 /// The embedded templates, by name.

@@ -17,8 +17,32 @@ use crate::stats::Alternative;
 use minijinja::{Environment, Value};
 
 /// Renders plan.md and plan.html.
-pub(super) fn render(lock: &LockFile, env: &Environment<'static>) -> Result<PlanDoc> {
+pub(super) fn render(
+    lock: &LockFile,
+    planned: &[Option<crate::planning::Planned>],
+    env: &Environment<'static>,
+) -> Result<PlanDoc> {
     let p = &lock.plan;
+    let sizes: Vec<Value> = p
+        .hypotheses
+        .iter()
+        .enumerate()
+        .map(|(i, h)| {
+            md(match planned.get(i).and_then(Option::as_ref) {
+                Some(pl) => format!(
+                    "{}: {}",
+                    escape(&h.id),
+                    super::planning::planned_sentence(
+                        pl,
+                        h.design.as_str(),
+                        p.alpha,
+                        h.alternative
+                    )
+                ),
+                None => format!("{}: not stated in the plan.", escape(&h.id)),
+            })
+        })
+        .collect();
     let ctx = minijinja::context! {
         title => p.title.clone(),
         authors => p.authors.join(", "),
@@ -37,6 +61,7 @@ pub(super) fn render(lock: &LockFile, env: &Environment<'static>) -> Result<Plan
             p.seed
         )),
         exclusions => p.exclude.iter().map(|r| md(exclusion(r))).collect::<Vec<_>>(),
+        sizes => sizes,
         lock_hash => lock.plan_sha256.clone(),
         lock_content => lock.content_sha256.clone(),
         locked_at => lock.locked_at.clone(),

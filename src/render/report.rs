@@ -35,6 +35,7 @@ struct Hyp {
     rule: Value,
     test: Vec<Value>,
     size: Vec<Value>,
+    planning: Option<Value>,
     sentence: Value,
     robustness: Vec<Vec<Value>>,
     figures: BTreeMap<String, FigureCtx>,
@@ -254,6 +255,10 @@ fn hypothesis(r: &Results, h: &HypothesisResult, figures: BTreeMap<String, Figur
         rule: md(rule(r, h)),
         test: test_lines(r, h),
         size: size_lines(h),
+        planning: h
+            .planning
+            .as_ref()
+            .map(|p| md(planning_paragraph(h, p, r.plan.alpha))),
         sentence: md(sentence::one_sentence(h, applied_correction(r))),
         robustness,
         figures,
@@ -488,4 +493,36 @@ fn applied_correction(r: &Results) -> crate::stats::multiplicity::Correction {
     } else {
         r.plan.correction
     }
+}
+
+/// Planned against achieved size, and the sensitivity of the achieved sample.
+fn planning_paragraph(
+    h: &HypothesisResult,
+    p: &crate::results::PlanningOutcome,
+    alpha: f64,
+) -> String {
+    let planned = super::planning::planned_sentence(&p.planned, &h.design, alpha, h.alternative);
+    let achieved = match p.achieved.as_slice() {
+        [a, b] => format!("{a} and {b}"),
+        [a] => a.to_string(),
+        _ => String::new(),
+    };
+    let planned_n = p
+        .planned
+        .n
+        .iter()
+        .map(|n| n.to_string())
+        .collect::<Vec<_>>()
+        .join(" and ");
+    let mut s =
+        format!("Sample size. The plan said: {planned} Planned {planned_n}; analysed {achieved}.");
+    if let Some(d) = p.sensitivity {
+        let sym = if h.design == "paired" { "*d_z*" } else { "*d*" };
+        s.push_str(&format!(
+            " With the sample analysed, the smallest effect the t-test detects with {} power is {sym} = {}.",
+            apa::level(p.planned.power_target),
+            apa::two(d.abs())
+        ));
+    }
+    s
 }

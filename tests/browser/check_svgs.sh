@@ -39,7 +39,9 @@ cat >>"$copy" <<'JS'
   }
   var pre = document.createElement("pre");
   pre.id = "svg-measurements";
-  pre.textContent = "BEGIN-SVG\n" + svgs.length + "\n" + out.join("\n") + "\nEND-SVG";
+    // The markers are assembled at run time so that the script's own source,
+  // which --dump-dom also prints, never contains them.
+  pre.textContent = "BEGIN" + "-SVG\n" + svgs.length + "\n" + out.join("\n") + "\nEND" + "-SVG";
   document.body.appendChild(pre);
 })();
 </script>
