@@ -217,6 +217,12 @@ pub fn render_outputs(
         .into_iter()
         .map(|(name, svg)| (name, svg.into_bytes()))
         .collect();
+    let values = crate::values::from_results(results)?;
+    files.push((
+        "values.tex".into(),
+        values.to_tex(&results.plan.title).into_bytes(),
+    ));
+    files.push(("values.json".into(), values.to_json().into_bytes()));
     files.push(("report.md".into(), rendered.report_md.into_bytes()));
     files.push(("report.html".into(), rendered.report_html.into_bytes()));
     files.push(("results.json".into(), json.into_bytes()));

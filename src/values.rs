@@ -15,6 +15,8 @@
 //! emphasis into `\textit{}` and escaping everything else.
 
 use crate::error::{Failure, Result};
+use crate::render::{apa, sentence};
+use crate::results::{HypothesisResult, Results};
 use pulldown_cmark::{Event, Parser, Tag, TagEnd};
 use std::collections::BTreeMap;
 
@@ -125,6 +127,8 @@ pub fn latex_escape(text: &str) -> String {
             '–' => s.push_str("--"),
             '—' => s.push_str("---"),
             '×' => s.push_str("\\ensuremath{\\times}"),
+            '<' => s.push_str("\\ensuremath{<}"),
+            '>' => s.push_str("\\ensuremath{>}"),
             '±' => s.push_str("\\ensuremath{\\pm}"),
             'α' => s.push_str("\\ensuremath{\\alpha}"),
             'μ' => s.push_str("\\ensuremath{\\mu}"),
@@ -146,6 +150,85 @@ pub fn markdown_to_latex(md: &str) -> String {
             Event::Text(t) | Event::Code(t) => s.push_str(&latex_escape(&t)),
             Event::SoftBreak | Event::HardBreak => s.push(' '),
             Event::Html(t) | Event::InlineHtml(t) => s.push_str(&latex_escape(&t)),
+            _ => {}
+        }
+    }
+    s
+}
+
+/// Builds the named values of a run from its results.
+pub fn from_results(r: &Results) -> Result<Values> {
+    let stem = r
+        .analysis_file
+        .strip_suffix(".toml")
+        .unwrap_or(&r.analysis_file);
+    let correction = sentence::applied_correction(r);
+    let conf = r.plan.confidence;
+    let mut v = Values::default();
+    for h in &r.hypotheses {
+        let mut add = |figure: &str, text: String| -> Result<()> {
+            v.add(
+                name(stem, &h.id, figure),
+                format!("{} {figure}", h.id),
+                text,
+            )
+        };
+        add("Stat", bare_statistic(h))?;
+        add("P", sentence::p_of(h, correction))?;
+        add("Effect", sentence::effect(&h.effect, conf))?;
+        add("Diff", sentence::estimate(&h.estimate, h.units.as_deref()))?;
+        add("Sentence", sentence::one_sentence(h, correction))?;
+        if let Some(eq) = &h.equivalence {
+            add(
+                "Equivalence",
+                format!("{} = {}", apa::sym("p"), apa::p_number(eq.p)),
+            )?;
+        }
+        for g in &h.groups {
+            add(
+                &format!("N {}", g.label),
+                format!("{} = {}", apa::sym("n"), g.n),
+            )?;
+            add(
+                &format!("Mean {}", g.label),
+                format!("{} = {}", apa::sym("M"), apa::two(g.mean)),
+            )?;
+            if let Some(sd) = g.sd {
+                add(
+                    &format!("SD {}", g.label),
+                    format!("{} = {}", apa::sym("SD"), apa::two(sd)),
+                )?;
+            }
+        }
+    }
+    Ok(v)
+}
+
+/// The test statistic without the method's name: `*t*(97.31) = 2.71`,
+/// `*U* = 312`, `*W*+ = 123`.
+fn bare_statistic(h: &HypothesisResult) -> String {
+    let t = &h.test;
+    match t.statistic_name.as_str() {
+        "U" => format!("{} = {}", apa::sym("U"), apa::rank_statistic(t.statistic)),
+        "W+" => format!("{}+ = {}", apa::sym("W"), apa::rank_statistic(t.statistic)),
+        _ => {
+            let df =
+                t.df.map(|d| format!("({})", apa::df(d, t.method == "welch-t")))
+                    .unwrap_or_default();
+            format!("{}{df} = {}", apa::sym("t"), apa::two(t.statistic))
+        }
+    }
+}
+
+/// Plain text for the terminal: Markdown emphasis removed.
+pub fn plain(markdown: &str) -> String {
+    let mut s = String::new();
+    for ev in Parser::new(markdown) {
+        match ev {
+            Event::Text(t) | Event::Code(t) | Event::Html(t) | Event::InlineHtml(t) => {
+                s.push_str(&t)
+            }
+            Event::SoftBreak | Event::HardBreak => s.push(' '),
             _ => {}
         }
     }

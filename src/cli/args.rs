@@ -104,6 +104,15 @@ pub enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Print the named values a run writes to values.tex and values.json,
+    /// so a writer can find the macro they need. Writes nothing.
+    Values {
+        /// The analysis file (TOML).
+        file: PathBuf,
+        /// Compute without a lock (values are the same; the lock is not checked).
+        #[arg(long)]
+        unlocked: bool,
+    },
     /// Check that a report reproduces: same plan, lock, data and output bytes.
     Verify {
         /// A report folder written by `attest run`, or its results.json.

@@ -127,6 +127,22 @@ fn dispatch(cli: Cli) -> Result<i32> {
                 say(&crate::render::planning::answer_lines(&a).join("\n"))?;
             }
         }
+        Command::Values { file, unlocked } => {
+            let r = pipeline::compute(&file, unlocked)?;
+            let v = crate::values::from_results(&r)?;
+            let width = v.iter().map(|(k, _)| k.len() + 1).max().unwrap_or(0);
+            let lines: Vec<String> = v
+                .iter()
+                .map(|(k, val)| {
+                    format!(
+                        "{:<width$}  {}",
+                        format!("\\{k}"),
+                        crate::values::plain(val)
+                    )
+                })
+                .collect();
+            say(&lines.join("\n"))?;
+        }
         Command::Verify {
             report,
             plan,

@@ -79,7 +79,7 @@ pub(super) fn render(r: &Results, env: &Environment<'static>) -> Result<Rendered
         hyps.push(hypothesis(r, h, fctx));
     }
     let glance: Vec<GlanceRow> = r.hypotheses.iter().map(|h| glance(r, h)).collect();
-    let p_header = match sentence::correction_name(applied_correction(r)) {
+    let p_header = match sentence::correction_name(sentence::applied_correction(r)) {
         Some(c) => format!("p ({c})"),
         None => "p".into(),
     };
@@ -178,7 +178,7 @@ fn glance(r: &Results, h: &HypothesisResult) -> GlanceRow {
     let e = &h.estimate;
     let fx = &h.effect;
     let effect = sentence::effect(fx, e.confidence);
-    let p = if applied_correction(r) == crate::stats::multiplicity::Correction::None {
+    let p = if sentence::applied_correction(r) == crate::stats::multiplicity::Correction::None {
         h.p
     } else {
         h.p_adjusted
@@ -259,7 +259,7 @@ fn hypothesis(r: &Results, h: &HypothesisResult, figures: BTreeMap<String, Figur
             .planning
             .as_ref()
             .map(|p| md(planning_paragraph(h, p, r.plan.alpha))),
-        sentence: md(sentence::one_sentence(h, applied_correction(r))),
+        sentence: md(sentence::one_sentence(h, sentence::applied_correction(r))),
         robustness,
         figures,
         rows: rows(h),
@@ -359,7 +359,7 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
         md(format!(
             "{}, {}.",
             sentence::statistic(&h.test),
-            sentence::p_of(h, applied_correction(r))
+            sentence::p_of(h, sentence::applied_correction(r))
         )),
     ];
     if let Some(pm) = h.p_method {
@@ -378,7 +378,7 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
             "{z} zero difference(s) were dropped before ranking."
         )));
     }
-    if let Some(name) = sentence::correction_method(applied_correction(r)) {
+    if let Some(name) = sentence::correction_method(sentence::applied_correction(r)) {
         out.push(md(format!(
             "Unadjusted {}; adjusted across the {} hypotheses of this plan ({name}).",
             apa::p_clause(h.p),
@@ -483,16 +483,6 @@ fn code_block(text: &str) -> String {
     let longest = text.split(|c| c != '`').map(str::len).max().unwrap_or(0);
     let fence = "`".repeat(longest.max(2) + 1);
     format!("{fence}\n{}\n{fence}", text.replace('\n', " "))
-}
-
-/// The correction that actually applies: with a single hypothesis there is
-/// nothing to correct for, whatever the plan names.
-fn applied_correction(r: &Results) -> crate::stats::multiplicity::Correction {
-    if r.hypotheses.len() < 2 {
-        crate::stats::multiplicity::Correction::None
-    } else {
-        r.plan.correction
-    }
 }
 
 /// Planned against achieved size, and the sensitivity of the achieved sample.

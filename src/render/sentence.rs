@@ -257,3 +257,13 @@ fn equivalence_sentence(h: &HypothesisResult, eq: &crate::results::EquivalenceRe
         t = sym("t"),
     )
 }
+
+/// The correction that actually applies: with a single hypothesis there is
+/// nothing to correct for, whatever the plan names.
+pub fn applied_correction(r: &crate::results::Results) -> Correction {
+    if r.hypotheses.len() < 2 {
+        Correction::None
+    } else {
+        r.plan.correction
+    }
+}

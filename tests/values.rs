@@ -1,0 +1,172 @@
+//! Named values for documents: the naming scheme, collisions, stability
+//! under data changes, and a LaTeX document that uses `values.tex`.
+
+mod common;
+
+use common::{copy_dir, root, Case};
+use std::collections::BTreeMap;
+
+const PLAN: &str = r#"attest = 1
+title = "Shelf trial"
+correction = "none"
+[data]
+path = "shelf.csv"
+[[hypothesis]]
+id = "H1"
+claim = "Picks are faster on the new shelf."
+design = "independent"
+outcome = "seconds"
+group = "shelf"
+levels = ["new", "old"]
+alternative = "less"
+method = "welch-t"
+[[hypothesis]]
+id = "H2"
+claim = "Errors differ between shelves."
+design = "independent"
+outcome = "errors"
+group = "shelf"
+levels = ["new", "old"]
+method = "mann-whitney"
+"#;
+
+const DATA: &str = "shelf,seconds,errors\nnew,31.2,1\nold,38.0,2\nnew,29.9,0\nold,36.4,3\nnew,33.1,1\nold,40.2,2\nnew,30.4,2\nold,35.1,4\nnew,28.7,0\nold,39.9,1\n";
+
+fn case() -> Case {
+    let c = Case::new();
+    c.write("shelf.toml", PLAN);
+    c.write("shelf.csv", DATA);
+    c
+}
+
+fn values(c: &Case, out: &str) -> BTreeMap<String, String> {
+    serde_json::from_str(&c.read(&format!("{out}/values.json"))).unwrap()
+}
+
+#[test]
+fn names_follow_the_scheme() {
+    let c = case();
+    c.attest(&["run", "--unlocked", "shelf.toml"]).success();
+    let names: Vec<String> = values(&c, "out/shelf").into_keys().collect();
+    insta::assert_snapshot!("value_names", names.join("\n"));
+}
+
+#[test]
+fn colliding_names_are_refused() {
+    let c = Case::new();
+    c.write("shelf.csv", DATA);
+    // "H-1" and "H1" both become "HOne".
+    c.write("shelf.toml", &PLAN.replace("id = \"H2\"", "id = \"H-1\""));
+    let out = c
+        .attest(&["run", "--unlocked", "shelf.toml"])
+        .failure()
+        .code(1);
+    let err = String::from_utf8_lossy(&out.get_output().stderr).into_owned();
+    insta::assert_snapshot!("value_name_collision", err);
+    assert!(!c.exists("out/shelf/results.json"));
+}
+
+#[test]
+fn changing_one_value_changes_exactly_the_affected_macros() {
+    let c = case();
+    c.attest(&["run", "--unlocked", "shelf.toml", "--out", "before"])
+        .success();
+    // One error count of the old shelf changes: 4 → 0. Worked by hand (and
+    // confirmed with scipy 1.17.1 mannwhitneyu): U for new rises from 3 to 7,
+    // the Hodges–Lehmann shift from −2 to −1, the old shelf's mean falls from
+    // 2.4 to 1.6 while its SD stays 1.14 (the deviations are the same set)
+    // and its median stays 2. H1 (seconds) and every count are untouched.
+    c.write("shelf.csv", &DATA.replace("old,35.1,4", "old,35.1,0"));
+    c.attest(&["run", "--unlocked", "shelf.toml", "--out", "after"])
+        .success();
+    let (a, b) = (values(&c, "before"), values(&c, "after"));
+    assert_eq!(
+        a.keys().collect::<Vec<_>>(),
+        b.keys().collect::<Vec<_>>(),
+        "names depend only on the plan"
+    );
+    let changed: Vec<&String> = a.keys().filter(|k| a[*k] != b[*k]).collect();
+    let expected = [
+        "ShelfHTwoDiff",
+        "ShelfHTwoEffect",
+        "ShelfHTwoMeanOld",
+        "ShelfHTwoP",
+        "ShelfHTwoSentence",
+        "ShelfHTwoStat",
+    ];
+    assert_eq!(changed, expected.iter().collect::<Vec<_>>());
+}
+
+/// Checks that `values.tex` is well-formed: one `\newcommand{\Name}{…}` per
+/// line, names of letters only, braces balanced.
+fn check_tex(tex: &str) {
+    let mut count = 0;
+    for line in tex.lines().filter(|l| !l.starts_with('%')) {
+        let rest = line
+            .strip_prefix("\\newcommand{\\")
+            .unwrap_or_else(|| panic!("not a definition: {line}"));
+        let (name, body) = rest.split_once('}').unwrap();
+        assert!(
+            !name.is_empty() && name.chars().all(|c| c.is_ascii_alphabetic()),
+            "bad name {name}"
+        );
+        let mut depth = 0i32;
+        let mut escaped = false;
+        for ch in body.chars() {
+            match ch {
+                _ if escaped => escaped = false,
+                '\\' => escaped = true,
+                '{' => depth += 1,
+                '}' => {
+                    depth -= 1;
+                    assert!(depth >= 0, "unbalanced: {line}");
+                }
+                _ => {}
+            }
+        }
+        assert_eq!(depth, 0, "unbalanced: {line}");
+        count += 1;
+    }
+    assert!(count > 10, "expected many definitions, got {count}");
+}
+
+#[test]
+fn values_tex_compiles_in_a_latex_document() {
+    let c = Case::new();
+    copy_dir(&root().join("analyses"), &c.path().join("analyses"));
+    c.attest(&["run", "--quiet", "analyses/tutoring.toml"])
+        .success();
+    let tex = c.read("out/tutoring/values.tex");
+    check_tex(&tex);
+    let engine = ["pdflatex", "tectonic"].into_iter().find(|e| {
+        std::process::Command::new(e)
+            .arg("--version")
+            .output()
+            .is_ok_and(|o| o.status.success())
+    });
+    let Some(engine) = engine else {
+        assert!(
+            std::env::var_os("ATTEST_REQUIRE_TEX").is_none(),
+            "ATTEST_REQUIRE_TEX is set but no pdflatex or tectonic was found"
+        );
+        eprintln!("skipped the LaTeX compile: no pdflatex or tectonic installed (checked the macro file's structure only)");
+        return;
+    };
+    // The chapter example from docs/values/, compiled against the fresh values.
+    std::fs::copy(
+        root().join("docs/values/chapter.tex"),
+        c.path().join("out/tutoring/chapter.tex"),
+    )
+    .unwrap();
+    let out = std::process::Command::new(engine)
+        .args(["-interaction=nonstopmode", "-halt-on-error", "chapter.tex"])
+        .current_dir(c.path().join("out/tutoring"))
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{engine} failed:\n{}",
+        String::from_utf8_lossy(&out.stdout)
+    );
+    assert!(c.exists("out/tutoring/chapter.pdf"));
+}
