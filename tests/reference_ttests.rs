@@ -147,12 +147,14 @@ fn noncentral_t_matches_mpmath_and_scipy() {
     // match scipy to 1e-9 relative: the series sums up to a few hundred
     // incomplete betas, each good to ~1e-14 relative.
     //
-    // In the far tails they disagree and neither is reliable: scipy's nct
-    // returns NaN there, or values such as 8e-20 where the probability is
-    // below 1e-300, and mpmath's fixed-breakpoint quadrature misses narrow
-    // peaks by up to ~1e-3 relative. At those points the result must match
-    // at least one of them to 1e-6 relative (a reference below 1e-300, i.e.
-    // 0 after rounding, is matched by any value below 1e-290).
+    // In the far tails they disagree and neither is fully reliable: scipy's
+    // nct returns NaN there, or values such as 8e-20 where the probability
+    // is below 1e-300; the generator then redoes the mpmath quadrature with
+    // breakpoints around the integrand's peak, but two quadrature settings
+    // were seen to differ by up to ~2e-6 relative on such narrow peaks.
+    // At those points the result must match mpmath (or scipy) to 1e-5
+    // relative; a reference below 1e-300 (0 after rounding to double) is
+    // matched by any value below 1e-290.
     let f = fixture();
     let (mut agreed, mut disputed) = (0, 0);
     for c in f["nct"].as_array().unwrap() {
@@ -184,7 +186,7 @@ fn noncentral_t_matches_mpmath_and_scipy() {
                 _ => {
                     disputed += 1;
                     assert!(
-                        matches(exact, 1e-6) || sp.is_some_and(|s| matches(s, 1e-6)),
+                        matches(exact, 1e-5) || sp.is_some_and(|s| matches(s, 1e-5)),
                         "{key} [{name}]: got {got:e}; mpmath {exact:e}, scipy {sp:?} (gen_ttests.py)"
                     );
                 }

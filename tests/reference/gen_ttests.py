@@ -229,13 +229,10 @@ def nct_mp(args, refine=False):
     def integrate(g):
         if not refine:
             return mpmath.quad(g, pts + [mpmath.inf])
-        # Extra breakpoints around the peak of the integrand (found on a
-        # log-spaced scan), so a narrow peak far from s = 1 is resolved.
-        grid = [mpmath.mpf(10) ** (k / 200) for k in range(-1600, 801)]
-        vals = [g(v) for v in grid]
-        i = max(range(len(grid)), key=lambda j: vals[j])
-        extra = {grid[j] for j in range(max(i - 40, 0), min(i + 41, len(grid)), 4)}
-        return mpmath.quad(g, sorted(set(pts) | extra) + [mpmath.inf])
+        # Dense geometric breakpoints from 1e-10 to 100 (20 per decade), so
+        # a narrow peak anywhere in that range is resolved.
+        dense = {mpmath.mpf(10) ** (k / 20) for k in range(-200, 41)}
+        return mpmath.quad(g, sorted(set(pts) | dense) + [mpmath.inf])
 
     cdf = integrate(lambda s: dens(s) * mpmath.ncdf(t * s - ncp))
     sf = integrate(lambda s: dens(s) * mpmath.ncdf(ncp - t * s))
@@ -252,7 +249,7 @@ def nct_grid():
     with multiprocessing.Pool(2) as pool:
         exact = pool.map(nct_mp, grid)
         # Where scipy and the quick quadrature disagree (far tails), redo the
-        # quadrature with breakpoints around the integrand's peak.
+        # quadrature with dense breakpoints.
         def agree(a, b):
             return a is not None and (a == b or abs(a - b) <= 1e-9 * abs(b))
         redo = [i for i, (t, df, ncp) in enumerate(grid)
