@@ -59,7 +59,7 @@ pub fn from_estimate(
 ) -> Result<TTest, StatsError> {
     check_level(level)?;
     // Finite inputs can still overflow when squared (|x| near 1e300).
-    if se.is_nan() || !estimate.is_finite() || !(df > 0.0) || se.is_infinite() {
+    if se.is_nan() || se.is_infinite() || !estimate.is_finite() || df.is_nan() || df <= 0.0 {
         return Err(StatsError::NonFinite);
     }
     if se <= 0.0 {
@@ -228,7 +228,7 @@ pub(crate) fn welch_parts(x: &[f64], y: &[f64]) -> Result<(f64, f64, f64), Stats
     let v1 = g.ss1 / (g.n1 - 1.0) / g.n1;
     let v2 = g.ss2 / (g.n2 - 1.0) / g.n2;
     let se2 = v1 + v2;
-    if !(se2 > 0.0) {
+    if se2.is_nan() || se2 <= 0.0 {
         return Err(StatsError::ZeroVariance);
     }
     let df = se2 * se2 / (v1 * v1 / (g.n1 - 1.0) + v2 * v2 / (g.n2 - 1.0));
