@@ -173,11 +173,12 @@ fn page(
     title: &str,
     body_md: &str,
     figures: &std::collections::BTreeMap<String, String>,
+    meta: &[(&str, String)],
 ) -> Result<String> {
     let body = markdown::to_html(body_md, figures);
     render_template(
         env,
         name,
-        minijinja::context! { title => title, body => Value::from_safe_string(body) },
+        minijinja::context! { title => title, body => Value::from_safe_string(body), meta => meta },
     )
 }

@@ -70,7 +70,19 @@ pub(super) fn render(
         data_sha256 => lock.data.sha256.clone(),
     };
     let plan_md = render_template(env, "plan.md.j2", ctx)?;
-    let plan_html = page(env, "plan.html.j2", &p.title, &plan_md, &Default::default())?;
+    let plan_html = page(
+        env,
+        "plan.html.j2",
+        &p.title,
+        &plan_md,
+        &Default::default(),
+        &[
+            ("attest-version", lock.version.clone()),
+            ("attest-plan-sha256", lock.plan_sha256.clone()),
+            ("attest-lock-content-sha256", lock.content_sha256.clone()),
+            ("attest-locked-at", lock.locked_at.clone()),
+        ],
+    )?;
     Ok(PlanDoc { plan_md, plan_html })
 }
 

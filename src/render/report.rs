@@ -102,7 +102,14 @@ pub(super) fn render(r: &Results, env: &Environment<'static>) -> Result<Rendered
         .iter()
         .map(|f| (f.file.clone(), f.svg.clone()))
         .collect();
-    let report_html = page(env, "report.html.j2", &r.plan.title, &report_md, &svgs)?;
+    let report_html = page(
+        env,
+        "report.html.j2",
+        &r.plan.title,
+        &report_md,
+        &svgs,
+        &provenance_meta(r),
+    )?;
     Ok(Rendered {
         report_md,
         report_html,
@@ -134,6 +141,20 @@ fn status(r: &Results) -> String {
                 " The lock file does not match its own hash: it was edited after it was written.",
             );
         }
+        s.push(' ');
+        s.push_str(&match &l.witness {
+            crate::witness::Witness::Committed { commit, date } => format!(
+                "Outside record: the lock was first committed to git in `{}` on {}.",
+                escape(&commit[..commit.len().min(12)]),
+                escape(date_of(date))
+            ),
+            crate::witness::Witness::NotCommitted => {
+                "Outside record: the lock is not committed to git yet, so only its own date vouches for it.".into()
+            }
+            crate::witness::Witness::NoGit => {
+                "Outside record: none; the analysis is not in a git work tree.".into()
+            }
+        });
     }
     s
 }
@@ -515,4 +536,27 @@ fn planning_paragraph(
         ));
     }
     s
+}
+
+/// Provenance as machine-readable `<meta>` tags of the HTML report (data,
+/// not code: the page stays free of scripts).
+fn provenance_meta(r: &Results) -> Vec<(&'static str, String)> {
+    let state = match r.lock {
+        crate::results::LockState::AsLocked => "as-locked",
+        crate::results::LockState::Deviates => "deviates",
+        crate::results::LockState::Unlocked => "unlocked",
+    };
+    let mut m = vec![
+        ("attest-version", r.version.clone()),
+        ("attest-plan-sha256", r.plan_sha256.clone()),
+        ("attest-lock-state", state.to_string()),
+    ];
+    if let Some(l) = &r.lock_record {
+        m.push(("attest-lock-sha256", l.sha256.clone()));
+        m.push(("attest-locked-at", l.locked_at.clone()));
+    }
+    m.push(("attest-data-path", r.data.path.clone()));
+    m.push(("attest-data-sha256", r.data.sha256.clone()));
+    m.push(("attest-command", r.command.clone()));
+    m
 }
