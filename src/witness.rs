@@ -52,20 +52,26 @@ pub fn witness(lock_path: &Path) -> Witness {
         return Witness::NoGit;
     }
     let name = name.to_string_lossy();
-    match git(
-        dir,
-        &["log", "--diff-filter=A", "--format=%H %cI", "--", &name],
-    ) {
-        Some(s) if !s.is_empty() => {
-            let last = s.lines().last().unwrap_or_default();
-            let (commit, date) = last.split_once(' ').unwrap_or((last, ""));
-            Witness::Committed {
+    // The witness is the first commit holding the lock *as it is now*: a
+    // lock deleted and re-created is dated by its own first commit, not by
+    // its predecessor's.
+    let Some(blob) = git(dir, &["hash-object", "--", &name]) else {
+        return Witness::NotCommitted;
+    };
+    let Some(log) = git(dir, &["log", "--reverse", "--format=%H %cI", "--", &name]) else {
+        return Witness::NotCommitted;
+    };
+    for line in log.lines() {
+        let (commit, date) = line.split_once(' ').unwrap_or((line, ""));
+        let spec = format!("{commit}:./{name}");
+        if git(dir, &["rev-parse", "--verify", "--quiet", &spec]).as_deref() == Some(blob.as_str()) {
+            return Witness::Committed {
                 commit: commit.to_string(),
                 date: date.to_string(),
-            }
+            };
         }
-        _ => Witness::NotCommitted,
     }
+    Witness::NotCommitted
 }
 
 #[cfg(test)]
@@ -98,12 +104,21 @@ mod tests {
         assert_eq!(witness(&p), Witness::NotCommitted);
         run(t.path(), &["add", "a.lock"]);
         run(t.path(), &["commit", "-q", "-m", "lock"]);
-        match witness(&p) {
+        let first = match witness(&p) {
             Witness::Committed { commit, date } => {
                 assert_eq!(commit.len(), 40);
                 assert!(date.starts_with("2026-11-02T10:00:00"), "{date}");
+                commit
             }
             other => panic!("expected a commit, got {other:?}"),
+        };
+        // A lock replaced on disk is not vouched for by the old commit.
+        std::fs::write(&p, "{\"replaced\": true}").unwrap();
+        assert_eq!(witness(&p), Witness::NotCommitted);
+        run(t.path(), &["commit", "-q", "-am", "new lock"]);
+        match witness(&p) {
+            Witness::Committed { commit, .. } => assert_ne!(commit, first),
+            other => panic!("expected the second commit, got {other:?}"),
         }
     }
 }
