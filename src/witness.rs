@@ -64,7 +64,8 @@ pub fn witness(lock_path: &Path) -> Witness {
     for line in log.lines() {
         let (commit, date) = line.split_once(' ').unwrap_or((line, ""));
         let spec = format!("{commit}:./{name}");
-        if git(dir, &["rev-parse", "--verify", "--quiet", &spec]).as_deref() == Some(blob.as_str()) {
+        if git(dir, &["rev-parse", "--verify", "--quiet", &spec]).as_deref() == Some(blob.as_str())
+        {
             return Witness::Committed {
                 commit: commit.to_string(),
                 date: date.to_string(),

@@ -19,7 +19,14 @@ fn json(args: &[&str]) -> Value {
 /// group (common textbook value, from memory); the exact noncentral t agrees.
 #[test]
 fn independent_n_is_an_array_of_group_sizes() {
-    let v = json(&["--design", "independent", "--effect", "0.5", "--power", "0.8"]);
+    let v = json(&[
+        "--design",
+        "independent",
+        "--effect",
+        "0.5",
+        "--power",
+        "0.8",
+    ]);
     assert_eq!(v["n"], serde_json::json!([64, 64]));
     assert!(v["power"].as_f64().unwrap() >= 0.8);
     assert_eq!(v["solved"], "n");
@@ -27,7 +34,16 @@ fn independent_n_is_an_array_of_group_sizes() {
 
 #[test]
 fn unequal_allocation_follows_the_ratio() {
-    let v = json(&["--design", "independent", "--effect", "0.5", "--power", "0.8", "--ratio", "2"]);
+    let v = json(&[
+        "--design",
+        "independent",
+        "--effect",
+        "0.5",
+        "--power",
+        "0.8",
+        "--ratio",
+        "2",
+    ]);
     let n = v["n"].as_array().unwrap();
     assert_eq!(n[1].as_u64().unwrap(), 2 * n[0].as_u64().unwrap());
 }
@@ -45,11 +61,23 @@ fn one_group_designs_give_a_number() {
 fn the_terminal_answer_is_a_sentence() {
     let c = Case::new();
     let out = c
-        .attest(&["power", "--design", "independent", "--effect", "0.4", "--power", "0.9", "--alternative", "greater"])
+        .attest(&[
+            "power",
+            "--design",
+            "independent",
+            "--effect",
+            "0.4",
+            "--power",
+            "0.9",
+            "--alternative",
+            "greater",
+        ])
         .success();
     let text = String::from_utf8_lossy(&out.get_output().stdout).into_owned();
     assert!(
-        text.starts_with("to detect d = 0.40 with 90% power at α = .05, one-sided, 108 per group are needed"),
+        text.starts_with(
+            "to detect d = 0.40 with 90% power at α = .05, one-sided, 108 per group are needed"
+        ),
         "{text}"
     );
     assert!(text.contains("for a rank test:"), "{text}");
@@ -58,8 +86,14 @@ fn the_terminal_answer_is_a_sentence() {
 #[test]
 fn exactly_two_of_three_are_required() {
     let c = Case::new();
-    let out = c.attest(&["power", "--design", "paired", "--effect", "0.5"]).failure().code(1);
+    let out = c
+        .attest(&["power", "--design", "paired", "--effect", "0.5"])
+        .failure()
+        .code(1);
     let err = String::from_utf8_lossy(&out.get_output().stderr).into_owned();
-    assert!(err.starts_with("error: give exactly two of --effect, --power and --n"), "{err}");
+    assert!(
+        err.starts_with("error: give exactly two of --effect, --power and --n"),
+        "{err}"
+    );
     assert!(err.contains("\nhelp: "), "{err}");
 }

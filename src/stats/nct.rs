@@ -196,15 +196,55 @@ fn over_scale(df: f64, tail: impl Fn(f64) -> f64) -> f64 {
         centre - 200.0,
         centre + (40.0 / df.sqrt() + 200.0 / df + 1.0).ln() + 2.0,
     );
-    // Coarse pass into 128 panels; the total it gives sets the absolute
-    // tolerance for the adaptive refinement, so tiny panels are not chased.
-    let n0 = 128;
-    let mut stack: Vec<(f64, f64, f64, f64)> = (0..n0)
-        .map(|i| {
-            let lo = a + (b - a) * i as f64 / n0 as f64;
-            let hi = a + (b - a) * (i + 1) as f64 / n0 as f64;
-            let (k, g) = gauss_kronrod(&f, lo, hi);
-            (lo, hi, k, g)
+    // At large df the chi-square factor is a narrow peak (width about
+    // √(2/ν) in v), which the tail factor can shift far from ln ν. Find the
+    // peak of the log-integrand (unimodal: both factors are log-concave in
+    // v) by golden-section search, measure its width from the curvature,
+    // and lay a dense band of panels over it; coarse panels cover the rest.
+    let ln_f = |v: f64| -> f64 {
+        let u = v.exp();
+        ln_norm + h * v - 0.5 * u + tail((u / df).sqrt()).ln()
+    };
+    // A grid brackets the peak first (a log-parabola stays finite and
+    // ordered even where the peak is far narrower than the grid step, and
+    // an underflowed tail, ln 0 = −∞, cannot mislead the bracketing).
+    let steps = 2000;
+    let at = |i: usize| a + (b - a) * i as f64 / steps as f64;
+    let best = (0..=steps)
+        .map(|i| (i, ln_f(at(i))))
+        .filter(|(_, y)| !y.is_nan())
+        .fold(
+            (0, f64::NEG_INFINITY),
+            |m, (i, y)| if y > m.1 { (i, y) } else { m },
+        );
+    let peak = golden_max(
+        &ln_f,
+        at(best.0.saturating_sub(1)),
+        at((best.0 + 1).min(steps)),
+    );
+    let e = 1e-4;
+    let curv = (ln_f(peak + e) - 2.0 * ln_f(peak) + ln_f(peak - e)) / (e * e);
+    let width = if curv.is_finite() && curv < 0.0 {
+        (-curv).sqrt().recip()
+    } else {
+        1.0
+    };
+    let band = ((peak - 60.0 * width).max(a), (peak + 60.0 * width).min(b));
+    let mut edges: Vec<f64> = Vec::new();
+    let spans = [(a, band.0, 64), (band.0, band.1, 240), (band.1, b, 64)];
+    for (lo, hi, n) in spans {
+        if hi > lo {
+            for i in 0..n {
+                edges.push(lo + (hi - lo) * i as f64 / n as f64);
+            }
+        }
+    }
+    edges.push(b);
+    let mut stack: Vec<(f64, f64, f64, f64)> = edges
+        .windows(2)
+        .map(|w| {
+            let (k, g) = gauss_kronrod(&f, w[0], w[1]);
+            (w[0], w[1], k, g)
         })
         .collect();
     let rough: f64 = stack.iter().map(|p| p.2).sum();
@@ -226,6 +266,43 @@ fn over_scale(df: f64, tail: impl Fn(f64) -> f64) -> f64 {
     // Sum the smallest first: deterministic and accurate.
     pieces.sort_by(f64::total_cmp);
     pieces.iter().sum::<f64>().clamp(0.0, 1.0)
+}
+
+/// The maximiser of a unimodal function on `[a, b]` by golden-section
+/// search (Kiefer 1953); NaN and −∞ values count as very low.
+fn golden_max(g: &impl Fn(f64) -> f64, a: f64, b: f64) -> f64 {
+    let val = |x: f64| {
+        let y = g(x);
+        if y.is_nan() {
+            f64::NEG_INFINITY
+        } else {
+            y
+        }
+    };
+    let r = (5f64.sqrt() - 1.0) / 2.0;
+    let (mut lo, mut hi) = (a, b);
+    let mut x1 = hi - r * (hi - lo);
+    let mut x2 = lo + r * (hi - lo);
+    let (mut f1, mut f2) = (val(x1), val(x2));
+    for _ in 0..200 {
+        if f1 < f2 {
+            lo = x1;
+            x1 = x2;
+            f1 = f2;
+            x2 = lo + r * (hi - lo);
+            f2 = val(x2);
+        } else {
+            hi = x2;
+            x2 = x1;
+            f2 = f1;
+            x1 = hi - r * (hi - lo);
+            f1 = val(x1);
+        }
+        if hi - lo < 1e-12 * (1.0 + lo.abs()) {
+            break;
+        }
+    }
+    0.5 * (lo + hi)
 }
 
 /// One Gauss–Kronrod 7/15 panel: (Kronrod estimate, Gauss estimate).
