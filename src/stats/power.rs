@@ -235,7 +235,7 @@ fn smallest_n(
     target: f64,
     power_at: impl Fn(usize) -> Result<f64, StatsError>,
 ) -> Result<(usize, f64), StatsError> {
-    if !(start <= 2.0 * N_MAX as f64) {
+    if start.is_nan() || start > 2.0 * N_MAX as f64 {
         return Err(too_big(start));
     }
     let p_min = power_at(n_min)?;
