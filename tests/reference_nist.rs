@@ -3,6 +3,8 @@
 //! in tests/reference/nist/ (provenance and verification notes in
 //! tests/reference/nist/PROVENANCE.md). Expected values are parsed from
 //! each file's own "Certified Values" block, never typed in by hand.
+// Reference values are kept exactly as their sources print them.
+#![allow(clippy::excessive_precision, clippy::inconsistent_digit_grouping)]
 
 use attest::stats::describe::describe;
 use attest::stats::ttest::{student_t, welch_t};

@@ -561,8 +561,7 @@ impl Checker<'_> {
             None => None,
             Some(e) => {
                 let v = e.get_ref();
-                if v.len() != 2 || !(v[0].0 < v[1].0) || !v[0].0.is_finite() || !v[1].0.is_finite()
-                {
+                if v.len() != 2 || v[0].0 >= v[1].0 || !v[0].0.is_finite() || !v[1].0.is_finite() {
                     return Err(self
                         .at(e, "`equivalence` must be two numbers [low, high] with low < high")
                         .help("write the smallest differences that matter, e.g. `equivalence = [-5, 5]` in the outcome's units"));

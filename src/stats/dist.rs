@@ -405,8 +405,8 @@ mod tests {
     fn t_one_df_is_cauchy() {
         // The t distribution with 1 df is the standard Cauchy (common practice):
         // P(T ≥ t) = 1/2 − atan(t)/π.
-        for &t in &[0.1, 1.0, 3.0, 100.0] {
-            let exact = 0.5 - (t as f64).atan() / std::f64::consts::PI;
+        for &t in &[0.1f64, 1.0, 3.0, 100.0] {
+            let exact = 0.5 - t.atan() / std::f64::consts::PI;
             assert!(rel(t_sf(t, 1.0), exact) < 1e-10, "t={t}");
         }
     }
