@@ -7,7 +7,7 @@ use std::path::PathBuf;
 /// Preregister a two-group comparison, lock it, run it unchanged, and
 /// render an audit-ready report.
 #[derive(Debug, Parser)]
-#[command(name = "attest", version, about, long_about = None, propagate_version = true)]
+#[command(name = "attest", version, about, long_about = None, propagate_version = true, term_width = 100)]
 pub struct Cli {
     /// What to do.
     #[command(subcommand)]
@@ -17,6 +17,18 @@ pub struct Cli {
 /// The commands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
+    /// Start a new analysis plan: write a complete, commented
+    /// analyses/NAME.toml for a design. Never overwrites.
+    New {
+        /// Name of the analysis (letters, digits, - and _).
+        name: String,
+        /// The design of the comparison.
+        #[arg(long, value_enum, default_value = "independent")]
+        design: DesignArg,
+        /// The test method [default: welch-t, paired-t or one-sample-t].
+        #[arg(long, value_enum)]
+        method: Option<MethodArg>,
+    },
     /// Check an analysis file without reading any data.
     Check {
         /// The analysis file (TOML).
@@ -64,6 +76,9 @@ pub enum Command {
         /// Print nothing but errors and lock warnings.
         #[arg(long, short)]
         quiet: bool,
+        /// Print the summary as JSON instead of lines.
+        #[arg(long, conflicts_with = "quiet")]
+        json: bool,
     },
     /// Plan a sample size: give two of --effect, --power and --n, and the
     /// third is solved for with the exact noncentral t distribution.
@@ -113,6 +128,14 @@ pub enum Command {
         #[arg(long)]
         unlocked: bool,
     },
+    /// Print shell completions for attest.
+    Completions {
+        /// The shell.
+        #[arg(value_enum)]
+        shell: clap_complete::Shell,
+    },
+    /// Print attest's manual page (roff), e.g. `attest man > attest.1`.
+    Man,
     /// Check that a report reproduces: same plan, lock, data and output bytes.
     Verify {
         /// A report folder written by `attest run`, or its results.json.
@@ -144,6 +167,40 @@ impl From<DesignArg> for crate::plan::Design {
             DesignArg::Independent => crate::plan::Design::Independent,
             DesignArg::Paired => crate::plan::Design::Paired,
             DesignArg::OneSample => crate::plan::Design::OneSample,
+        }
+    }
+}
+
+/// Methods, as named in analysis files.
+#[derive(Clone, Copy, Debug, clap::ValueEnum)]
+pub enum MethodArg {
+    /// Student's t-test.
+    StudentT,
+    /// Welch's t-test.
+    WelchT,
+    /// Mann–Whitney U test.
+    MannWhitney,
+    /// Paired t-test.
+    PairedT,
+    /// Wilcoxon signed-rank test.
+    WilcoxonSignedRank,
+    /// One-sample t-test.
+    OneSampleT,
+    /// Preregistered checks choose the test.
+    Checked,
+}
+
+impl From<MethodArg> for crate::plan::Method {
+    fn from(m: MethodArg) -> Self {
+        use crate::plan::Method;
+        match m {
+            MethodArg::StudentT => Method::StudentT,
+            MethodArg::WelchT => Method::WelchT,
+            MethodArg::MannWhitney => Method::MannWhitney,
+            MethodArg::PairedT => Method::PairedT,
+            MethodArg::WilcoxonSignedRank => Method::WilcoxonSignedRank,
+            MethodArg::OneSampleT => Method::OneSampleT,
+            MethodArg::Checked => Method::Checked,
         }
     }
 }

@@ -36,12 +36,46 @@ pub fn main() -> i32 {
 /// Writes one block of text and a newline to standard output.
 fn say(s: &str) -> Result<()> {
     let mut out = std::io::stdout().lock();
-    writeln!(out, "{s}")
-        .map_err(|e| Failure::internal(format!("cannot write to the terminal: {e}")))
+    match writeln!(out, "{s}") {
+        // A reader that stops early (`attest man | head`) is not an error.
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
+        other => other.map_err(|e| Failure::internal(format!("cannot write to the terminal: {e}"))),
+    }
 }
 
 fn dispatch(cli: Cli) -> Result<i32> {
     match cli.command {
+        Command::New {
+            name,
+            design,
+            method,
+        } => {
+            let path = crate::starter::write(
+                std::path::Path::new("."),
+                &name,
+                design.into(),
+                method.map(Into::into),
+            )?;
+            say(&format!(
+                "wrote {}\nnext: read its comments and edit it, then `attest check {}`",
+                path.display(),
+                path.display()
+            ))?;
+        }
+        Command::Completions { shell } => {
+            let mut cmd = <Cli as clap::CommandFactory>::command();
+            let mut buf = Vec::new();
+            clap_complete::generate(shell, &mut cmd, "attest", &mut buf);
+            say(String::from_utf8_lossy(&buf).trim_end())?;
+        }
+        Command::Man => {
+            let cmd = <Cli as clap::CommandFactory>::command();
+            let mut buf = Vec::new();
+            clap_mangen::Man::new(cmd)
+                .render(&mut buf)
+                .map_err(|e| Failure::internal(format!("cannot render the manual page: {e}")))?;
+            say(String::from_utf8_lossy(&buf).trim_end())?;
+        }
         Command::Check { file } => {
             let f = pipeline::check(&file)?;
             say(&terminal::plan_summary(&f))?;
@@ -63,8 +97,13 @@ fn dispatch(cli: Cli) -> Result<i32> {
             force,
             expect_same,
             quiet,
+            json,
         } => {
             let files = pipeline::expand(&paths)?;
+            if json && (files.len() > 1 || expect_same) {
+                return Err(Failure::input("--json prints the summary of one analysis")
+                    .help("run one analysis file with --json, or leave --json out"));
+            }
             if files.len() > 1 && out.is_some() {
                 return Err(Failure::input(
                     "--out names one folder, but several analyses were given",
@@ -82,8 +121,10 @@ fn dispatch(cli: Cli) -> Result<i32> {
                 for line in terminal::lock_warnings(&o.results) {
                     eprintln!("{line}");
                 }
-                if !quiet {
-                    say(&terminal::run_summary(&o))?;
+                if json {
+                    say(&terminal::run_json(&o))?;
+                } else if !quiet {
+                    say(&terminal::run_summary(&o, terminal::colour()))?;
                 }
             } else {
                 return batch::run(&files, &opts, expect_same, quiet);

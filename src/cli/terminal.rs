@@ -124,7 +124,7 @@ pub fn lock_warnings(r: &Results) -> Vec<String> {
 }
 
 /// `attest run`: one line per hypothesis, then where the report is.
-pub fn run_summary(o: &RunOutcome) -> String {
+pub fn run_summary(o: &RunOutcome, colour: bool) -> String {
     let r = &o.results;
     let mut s = String::new();
     let width = r
@@ -159,7 +159,7 @@ pub fn run_summary(o: &RunOutcome) -> String {
             effect_symbol(&eff.name),
             effect_value,
             apa::p_number(h.p_adjusted),
-            verdict,
+            paint(verdict, colour),
         ));
     }
     s.push_str(&format!(
@@ -211,5 +211,52 @@ pub fn power_json(a: &crate::planning::Answer) -> String {
     if a.n.len() == 1 {
         v["n"] = serde_json::json!(a.n[0]);
     }
+    serde_json::to_string_pretty(&v).expect("a value always serialises")
+}
+
+/// Whether to colour terminal output: only on a terminal, never when
+/// `NO_COLOR` is set (https://no-color.org convention, common practice).
+pub fn colour() -> bool {
+    use std::io::IsTerminal;
+    std::env::var_os("NO_COLOR").is_none() && std::io::stdout().is_terminal()
+}
+
+/// A verdict in colour: green when supported or equivalent, yellow otherwise.
+fn paint(verdict: &str, colour: bool) -> String {
+    if !colour {
+        return verdict.to_string();
+    }
+    let code = if verdict.starts_with("not") {
+        "33"
+    } else {
+        "32"
+    };
+    format!("\x1b[{code}m{verdict}\x1b[0m")
+}
+
+/// `attest run --json`: one object per hypothesis and the report's place.
+pub fn run_json(o: &RunOutcome) -> String {
+    let hyps: Vec<serde_json::Value> = o
+        .results
+        .hypotheses
+        .iter()
+        .map(|h| {
+            serde_json::json!({
+                "id": h.id,
+                "method": h.method,
+                "estimate": h.estimate,
+                "effect": h.effect,
+                "p": h.p,
+                "p_adjusted": h.p_adjusted,
+                "decision": h.decision,
+            })
+        })
+        .collect();
+    let v = serde_json::json!({
+        "lock": o.results.lock,
+        "hypotheses": hyps,
+        "report": o.out_dir.join("report.html"),
+        "results": o.out_dir.join("results.json"),
+    });
     serde_json::to_string_pretty(&v).expect("a value always serialises")
 }
