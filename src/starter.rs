@@ -27,21 +27,8 @@ pub fn write(root: &Path, name: &str, design: Design, method: Option<Method>) ->
         Design::Paired => Method::PairedT,
         Design::OneSample => Method::OneSampleT,
     });
-    if !method.fits(design) {
-        let fitting: Vec<&str> = Method::ALL
-            .iter()
-            .filter(|m| m.fits(design))
-            .map(|m| m.as_str())
-            .collect();
-        return Err(Failure::input(format!(
-            "method \"{}\" does not fit a {} design",
-            method.as_str(),
-            design.as_str()
-        ))
-        .help(format!(
-            "for this design choose one of: {}",
-            fitting.join(", ")
-        )));
+    if let Some(e) = method.misfit(design) {
+        return Err(e);
     }
     let dir = root.join("analyses");
     std::fs::create_dir_all(&dir).map_err(|e| Failure::io("create", &dir, &e))?;

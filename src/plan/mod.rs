@@ -248,6 +248,29 @@ impl Method {
         }
     }
 
+    /// The failure to report when the method does not fit the design.
+    pub fn misfit(self, design: Design) -> Option<crate::error::Failure> {
+        if self.fits(design) {
+            return None;
+        }
+        let fitting: Vec<&str> = Method::ALL
+            .iter()
+            .filter(|m| m.fits(design))
+            .map(|m| m.as_str())
+            .collect();
+        Some(
+            crate::error::Failure::input(format!(
+                "method \"{}\" does not fit a {} design",
+                self.as_str(),
+                design.as_str()
+            ))
+            .help(format!(
+                "for this design choose one of: {}",
+                fitting.join(", ")
+            )),
+        )
+    }
+
     /// Whether the method is a rank test.
     pub fn is_rank(self) -> bool {
         matches!(self, Method::MannWhitney | Method::WilcoxonSignedRank)

@@ -508,25 +508,9 @@ impl Checker<'_> {
                     .help("add e.g. `method = \"welch-t\"`, or `method = \"checked\"` for the assumption-gated choice"))
             }
         };
-        if !method.fits(design) {
-            let fitting: Vec<&str> = Method::ALL
-                .iter()
-                .filter(|m| m.fits(design))
-                .map(|m| m.as_str())
-                .collect();
-            return Err(self
-                .at(
-                    r.method.as_ref().expect("method present"),
-                    format!(
-                        "method \"{}\" does not fit a {} design",
-                        method.as_str(),
-                        design.as_str()
-                    ),
-                )
-                .help(format!(
-                    "for this design choose one of: {}",
-                    fitting.join(", ")
-                )));
+        if let Some(e) = method.misfit(design) {
+            let at = self.at(r.method.as_ref().expect("method present"), e.what);
+            return Err(Failure { help: e.help, ..at });
         }
         let alternative = match &r.alternative {
             None => Alternative::TwoSided,
