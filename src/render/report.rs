@@ -464,9 +464,22 @@ fn rows(h: &HypothesisResult) -> Vec<Vec<Value>> {
     out.push(vec![md("Missing values"), n(f.missing[0]), n(f.missing[1])]);
     if h.design == "paired" {
         out.push(vec![
-            md("Incomplete pairs"),
-            n(f.incomplete_pairs),
-            n(f.incomplete_pairs),
+            md(format!(
+                "Dropped: the other measurement of the unit was missing or excluded ({} incomplete pairs)",
+                f.incomplete_pairs
+            )),
+            n(f.unpaired[0]),
+            n(f.unpaired[1]),
+        ]);
+    }
+    if f.other_levels + f.no_group > 0 {
+        out.push(vec![
+            md(format!(
+                "Not in either group: {} rows of other levels, {} with no group label (ignored)",
+                f.other_levels, f.no_group
+            )),
+            md("–"),
+            md("–"),
         ]);
     }
     out.push(vec![
