@@ -45,7 +45,9 @@ fn files(dir: &Path) -> BTreeSet<String> {
 fn args_of(case: &Path) -> Vec<String> {
     match std::fs::read_to_string(case.join("args")) {
         Ok(text) => text.split_whitespace().map(str::to_string).collect(),
-        Err(_) => ["run", "--unlocked", "plan.toml"].map(String::from).to_vec(),
+        Err(_) => ["run", "--unlocked", "plan.toml"]
+            .map(String::from)
+            .to_vec(),
     }
 }
 
@@ -79,8 +81,8 @@ fn check(case: &Path) -> Result<(), String> {
         .args(args_of(case))
         .output()
         .unwrap();
-    let stderr = String::from_utf8_lossy(&out.stderr)
-        .replace(&tmp.path().display().to_string(), "[TMP]");
+    let stderr =
+        String::from_utf8_lossy(&out.stderr).replace(&tmp.path().display().to_string(), "[TMP]");
     let mut problems = Vec::new();
     if out.status.code() != Some(1) {
         problems.push(format!("exit code {:?}, expected 1", out.status.code()));
@@ -126,7 +128,10 @@ fn check(case: &Path) -> Result<(), String> {
     if problems.is_empty() {
         Ok(())
     } else {
-        Err(format!("{name}: {}\n--- stderr ---\n{stderr}", problems.join("; ")))
+        Err(format!(
+            "{name}: {}\n--- stderr ---\n{stderr}",
+            problems.join("; ")
+        ))
     }
 }
 
@@ -155,5 +160,8 @@ fn position_reads_file_line_and_column() {
         Some(("data.csv".into(), false))
     );
     assert_eq!(position("error: plan.toml has no lock"), None);
-    assert_eq!(position("error: cannot read the data file ./d.csv: No such file"), None);
+    assert_eq!(
+        position("error: cannot read the data file ./d.csv: No such file"),
+        None
+    );
 }

@@ -167,7 +167,11 @@ fn outputs_are_complete(files: &BTreeMap<String, Vec<u8>>) -> Result<(), TestCas
             let v: Result<serde_json::Value, _> = serde_json::from_str(&text);
             prop_assert!(v.is_ok(), "{} is not valid JSON", name);
         } else if name.ends_with(".html") {
-            prop_assert!(text.trim_end().ends_with("</html>"), "{} is cut short", name);
+            prop_assert!(
+                text.trim_end().ends_with("</html>"),
+                "{} is cut short",
+                name
+            );
         } else if name.ends_with(".svg") {
             prop_assert!(text.trim_end().ends_with("</svg>"), "{} is cut short", name);
         } else if name.ends_with(".md") {
