@@ -59,7 +59,7 @@ pub fn from_estimate(
 ) -> Result<TTest, StatsError> {
     check_level(level)?;
     // Finite inputs can still overflow when squared (|x| near 1e300).
-    if se.is_nan() || !estimate.is_finite() || !(df > 0.0) || se.is_infinite() {
+    if se.is_nan() || !estimate.is_finite() || df.is_nan() || df <= 0.0 || se.is_infinite() {
         return Err(StatsError::Overflow);
     }
     if se <= 0.0 {
@@ -233,7 +233,7 @@ pub(crate) fn welch_parts(x: &[f64], y: &[f64]) -> Result<(f64, f64, f64), Stats
     if !se2.is_finite() || !g.diff.is_finite() {
         return Err(StatsError::Overflow);
     }
-    if !(se2 > 0.0) {
+    if se2 <= 0.0 {
         return Err(StatsError::ZeroVariance);
     }
     let df = se2 * se2 / (v1 * v1 / (g.n1 - 1.0) + v2 * v2 / (g.n2 - 1.0));
