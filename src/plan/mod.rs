@@ -260,7 +260,7 @@ impl Method {
             .collect();
         Some(
             crate::error::Failure::input(format!(
-                "method \"{}\" does not fit a {} design",
+                "method \"{}\" does not fit the {} design",
                 self.as_str(),
                 design.as_str()
             ))

@@ -54,12 +54,37 @@ fn toml_failure(path: &Path, text: &str, e: &toml::de::Error) -> Failure {
         f = f.help(help);
     } else if msg.contains("missing field") {
         f = f.help("add the key; see the README's analysis-file reference");
+    } else if let Some(help) = type_help(&msg) {
+        f = f.help(help);
     } else {
         f = f.help(
             "fix the TOML syntax at that position (strings need quotes, tables need [brackets])",
         );
     }
     f
+}
+
+/// For serde's "invalid type: …, expected X" message (a value of the wrong
+/// kind, which is not a syntax error), says how to write an X.
+fn type_help(msg: &str) -> Option<String> {
+    if msg.contains("number overflowed") {
+        return Some("write a number between -1.8e308 and 1.8e308".into());
+    }
+    let rest = msg.strip_prefix("invalid type: ")?;
+    let expected = rest.split_once(", expected ")?.1.lines().next()?.trim();
+    Some(match expected {
+        "a number" | "f64" | "i64" => {
+            "this key takes a number: write it without quotes, e.g. `0.05`".into()
+        }
+        "a sequence" => {
+            "this key takes a list in square brackets, e.g. `[\"first\", \"second\"]`; \
+             a repeated block such as [[hypothesis]] needs double brackets"
+                .into()
+        }
+        "a string" | "a borrowed string" => "this key takes text: write it in double quotes".into(),
+        "a boolean" => "this key takes `true` or `false`, without quotes".into(),
+        other => format!("write {other} here"),
+    })
 }
 
 fn first_sentence(msg: &str) -> String {
@@ -686,12 +711,12 @@ impl Checker<'_> {
                 if !used.contains(key) {
                     let (l, c) = line_col(self.text, span.start);
                     return Err(Failure::input(format!(
-                        "`{key}` is not used by a {} design",
+                        "`{key}` is not used by the {} design",
                         design.as_str()
                     ))
                     .at(self.path, l, Some(c))
                     .help(format!(
-                        "remove `{key}`; a {} hypothesis uses: {}",
+                        "remove `{key}`; the {} design uses: {}",
                         design.as_str(),
                         used.join(", ")
                     )));
@@ -810,7 +835,7 @@ method = "welch-t"
             .replace("design = \"independent\"", "design = \"paired\"")
             .replace("welch-t", "paired-t");
         let e = parse(Path::new("a.toml"), &text).unwrap_err();
-        assert_eq!(e.what, "`group` is not used by a paired design");
+        assert_eq!(e.what, "`group` is not used by the paired design");
     }
 
     #[test]

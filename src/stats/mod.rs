@@ -88,7 +88,7 @@ pub enum PMethod {
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
 pub enum StatsError {
     /// Fewer observations than the method needs.
-    #[error("needs at least {needed} values, has {got}")]
+    #[error("needs at least {needed} {}, has {got}", if *.needed == 1 { "value" } else { "values" })]
     TooFew {
         /// Minimum number of observations the method needs.
         needed: usize,
@@ -101,6 +101,10 @@ pub enum StatsError {
     /// Every value is the same, so the spread is zero.
     #[error("all values are identical, so the spread is zero")]
     ZeroVariance,
+    /// The values are finite but so large that a sum, difference or square
+    /// of them exceeds the largest double (about ±1.8e308).
+    #[error("the values are so large that their sums or squares exceed the largest representable number (about 1.8e308)")]
+    Overflow,
     /// Every paired difference (or difference from the reference) is zero.
     #[error("every difference is zero")]
     AllZero,

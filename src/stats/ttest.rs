@@ -59,8 +59,8 @@ pub fn from_estimate(
 ) -> Result<TTest, StatsError> {
     check_level(level)?;
     // Finite inputs can still overflow when squared (|x| near 1e300).
-    if se.is_nan() || se.is_infinite() || !estimate.is_finite() || df.is_nan() || df <= 0.0 {
-        return Err(StatsError::NonFinite);
+    if se.is_nan() || !estimate.is_finite() || df.is_nan() || df <= 0.0 || se.is_infinite() {
+        return Err(StatsError::Overflow);
     }
     if se <= 0.0 {
         return Err(StatsError::ZeroVariance);
@@ -228,7 +228,12 @@ pub(crate) fn welch_parts(x: &[f64], y: &[f64]) -> Result<(f64, f64, f64), Stats
     let v1 = g.ss1 / (g.n1 - 1.0) / g.n1;
     let v2 = g.ss2 / (g.n2 - 1.0) / g.n2;
     let se2 = v1 + v2;
-    if se2.is_nan() || se2 <= 0.0 {
+    // Finite data near ±1e308 overflow when centred or squared; that is not
+    // a zero spread and must not be reported as one.
+    if !se2.is_finite() || !g.diff.is_finite() {
+        return Err(StatsError::Overflow);
+    }
+    if se2 <= 0.0 {
         return Err(StatsError::ZeroVariance);
     }
     let df = se2 * se2 / (v1 * v1 / (g.n1 - 1.0) + v2 * v2 / (g.n2 - 1.0));
@@ -277,6 +282,23 @@ mod tests {
         assert_eq!(
             welch_t(&[1.0, 1.0], &[2.0, 2.0], a, 0.95).unwrap_err(),
             StatsError::ZeroVariance
+        );
+        // Finite values whose differences overflow: found by the catalogue
+        // case tests/bad_inputs/data-overflowing-values, which reported
+        // "all values are identical" for them.
+        let huge = [1e308, -1e308, 1.5e308];
+        let other = [-1e308, 1e308, -1.7e308];
+        assert_eq!(
+            welch_t(&huge, &other, a, 0.95).unwrap_err(),
+            StatsError::Overflow
+        );
+        assert_eq!(
+            student_t(&huge, &other, a, 0.95).unwrap_err(),
+            StatsError::Overflow
+        );
+        assert_eq!(
+            one_sample_t(&huge, 0.0, a, 0.95).unwrap_err(),
+            StatsError::Overflow
         );
         assert!(matches!(
             student_t(&[1.0, 2.0], &[3.0, 5.0], a, 1.0),
