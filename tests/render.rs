@@ -518,13 +518,13 @@ fn every_figure_is_labelled() {
     assert_eq!(
         names,
         [
-            "h1-groups.svg",
-            "h1-qq.svg",
-            "h1-difference.svg",
-            "h2-pairs.svg",
-            "h2-qq.svg",
-            "h2-differences.svg",
-            "h2-difference.svg"
+            "figures/h1-groups.svg",
+            "figures/h1-qq.svg",
+            "figures/h1-difference.svg",
+            "figures/h2-pairs.svg",
+            "figures/h2-qq.svg",
+            "figures/h2-differences.svg",
+            "figures/h2-difference.svg"
         ]
     );
     for (name, svg) in &out.figures {

@@ -177,7 +177,8 @@ fn values_tex_compiles_in_a_latex_document() {
 fn the_markdown_example_fills_from_values_json() {
     let c = Case::new();
     copy_dir(&root().join("analyses"), &c.path().join("analyses"));
-    c.attest(&["run", "--quiet", "analyses/tutoring.toml"]).success();
+    c.attest(&["run", "--quiet", "analyses/tutoring.toml"])
+        .success();
     let out = std::process::Command::new("python3")
         .arg(root().join("docs/values/fill.py"))
         .arg(c.path().join("out/tutoring/values.json"))
@@ -185,7 +186,11 @@ fn the_markdown_example_fills_from_values_json() {
         .output()
         .expect("python3 runs");
     let text = String::from_utf8_lossy(&out.stdout).into_owned();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     assert!(!text.contains("{{"), "a placeholder was left: {text}");
     let values = values(&c, "out/tutoring");
     assert!(text.contains(&values["TutoringHOneStat"]), "{text}");
