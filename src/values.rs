@@ -208,6 +208,20 @@ pub fn from_results(r: &Results) -> Result<Values> {
 /// `*U* = 312`, `*W*+ = 123`.
 fn bare_statistic(h: &HypothesisResult) -> String {
     let t = &h.test;
+    if let Some(eq) = &h.equivalence {
+        // The deciding one of the two one-sided tests: the larger p.
+        let deciding = if eq.p_lower >= eq.p_upper {
+            eq.t_lower
+        } else {
+            eq.t_upper
+        };
+        return format!(
+            "{}({}) = {}",
+            apa::sym("t"),
+            apa::df(eq.df, t.method == "welch-t"),
+            apa::two(deciding)
+        );
+    }
     match t.statistic_name.as_str() {
         "U" => format!("{} = {}", apa::sym("U"), apa::rank_statistic(t.statistic)),
         "W+" => format!("{}+ = {}", apa::sym("W"), apa::rank_statistic(t.statistic)),

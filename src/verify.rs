@@ -24,6 +24,8 @@ pub struct Item {
     pub changed: Option<String>,
     /// Whether a change here makes verification fail.
     pub fatal: bool,
+    /// A fact reported for information only (nothing was compared).
+    pub note: Option<String>,
 }
 
 impl Item {
@@ -32,6 +34,13 @@ impl Item {
             what: what.into(),
             changed: None,
             fatal: false,
+            note: None,
+        }
+    }
+    fn note(what: impl Into<String>, note: impl Into<String>) -> Item {
+        Item {
+            note: Some(note.into()),
+            ..Item::same(what)
         }
     }
     fn changed(what: impl Into<String>, how: impl Into<String>, fatal: bool) -> Item {
@@ -39,6 +48,7 @@ impl Item {
             what: what.into(),
             changed: Some(how.into()),
             fatal,
+            note: None,
         }
     }
 }
@@ -185,26 +195,15 @@ pub fn verify(
     // outputs as of the recorded witness and report the current one.
     if let (Some(now), Some(then)) = (fresh.lock_record.as_mut(), recorded.lock_record.as_ref()) {
         let current = std::mem::replace(&mut now.witness, then.witness.clone());
-        items.push(Item::same(format!(
-            "lock in git ({})",
-            describe_witness(&current)
-        )));
+        items.push(Item::note("lock in git", describe_witness(&current)));
     }
     let outputs = pipeline::render_outputs(&fresh, templates)?;
     for (name, bytes) in outputs {
         let path = dir.join(&name);
         items.push(match std::fs::read(&path) {
             Ok(old) if old == bytes => Item::same(name),
-            Ok(_) => Item::changed(
-                name.clone(),
-                format!("{name} differs from a fresh run"),
-                true,
-            ),
-            Err(_) => Item::changed(
-                name.clone(),
-                format!("{name} is missing from the report"),
-                true,
-            ),
+            Ok(_) => Item::changed(name.clone(), "differs from a fresh run", true),
+            Err(_) => Item::changed(name.clone(), "is missing from the report", true),
         });
     }
     Ok(Verification { analysis, items })

@@ -86,7 +86,7 @@ fn one(file: &Path, opts: &RunOptions, expect_same: bool) -> Row {
             Row {
                 file: name,
                 status: status.into(),
-                hypotheses: format!("{} ({} rejected)", r.hypotheses.len(), supported),
+                hypotheses: format!("{} ({} supported)", r.hypotheses.len(), supported),
                 problem,
                 kind,
             }
@@ -119,10 +119,12 @@ fn table(rows: &[Row]) -> String {
         "file", "status", "hypotheses"
     );
     for r in rows {
-        s.push_str(&format!(
-            "{:<wf$}  {:<ws$}  {:<wh$}  {}\n",
+        let line = format!(
+            "{:<wf$}  {:<ws$}  {:<wh$}  {}",
             r.file, r.status, r.hypotheses, r.problem
-        ));
+        );
+        s.push_str(line.trim_end());
+        s.push('\n');
     }
     let failed = rows.iter().filter(|r| r.kind.is_some()).count();
     s.push_str(&format!(

@@ -179,9 +179,10 @@ pub fn verification(v: &crate::verify::Verification) -> String {
         .max()
         .unwrap_or(4);
     for i in &v.items {
-        match &i.changed {
-            None => s.push_str(&format!("  {:<width$}  same\n", i.what)),
-            Some(how) => s.push_str(&format!("  {:<width$}  changed: {how}\n", i.what)),
+        match (&i.changed, &i.note) {
+            (None, Some(note)) => s.push_str(&format!("  {:<width$}  {note}\n", i.what)),
+            (None, None) => s.push_str(&format!("  {:<width$}  same\n", i.what)),
+            (Some(how), _) => s.push_str(&format!("  {:<width$}  changed: {how}\n", i.what)),
         }
     }
     s.push_str(if v.passed() {

@@ -53,7 +53,7 @@ fn toml_failure(path: &Path, text: &str, e: &toml::de::Error) -> Failure {
     if let Some(help) = unknown_key_help(&msg) {
         f = f.help(help);
     } else if msg.contains("missing field") {
-        f = f.help("add the key; see the README's analysis-file reference");
+        f = f.help("add the key; see docs/guide/reference/analysis-file.md");
     } else if let Some(help) = type_help(&msg) {
         f = f.help(help);
     } else {

@@ -375,13 +375,23 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
     } else {
         format!(" (planned: {})", method_name(&h.method_planned))
     };
-    let mut out = vec![
-        md(format!("Method used: {}{planned}.", method_name(&h.method))),
-        md(format!(
+    let test_line = match &h.equivalence {
+        // The verdict rests on the two one-sided tests below; the ordinary
+        // test of a difference is shown with its own p, and says so.
+        Some(_) => format!(
+            "Test of any difference (for information; the verdict rests on the equivalence tests): {}, {}.",
+            sentence::statistic(&h.test),
+            apa::p_clause(h.test.p)
+        ),
+        None => format!(
             "{}, {}.",
             sentence::statistic(&h.test),
             sentence::p_of(h, sentence::applied_correction(r))
-        )),
+        ),
+    };
+    let mut out = vec![
+        md(format!("Method used: {}{planned}.", method_name(&h.method))),
+        md(test_line),
     ];
     if let Some(pm) = h.p_method {
         let how = match pm {
@@ -408,10 +418,11 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
     }
     if let Some(eq) = &h.equivalence {
         out.push(md(format!(
-            "Equivalence (two one-sided tests, bounds {} to {}{}): against the lower bound {}({}) = {}, {}; against the upper bound {}({}) = {}, {}.",
+            "Equivalence (two one-sided tests, bounds {} to {}{}): against the lower bound {}({}) = {}, {}; against the upper bound {}({}) = {}, {}; the equivalence {} is the larger of the two, {}.",
             two(eq.low), two(eq.high), units(h),
             sym("t"), apa::df(eq.df, h.method == "welch-t"), two(eq.t_lower), apa::p_clause(eq.p_lower),
             sym("t"), apa::df(eq.df, h.method == "welch-t"), two(eq.t_upper), apa::p_clause(eq.p_upper),
+            sym("p"), apa::p_number(eq.p),
         )));
     }
     out.push(md(format!(
