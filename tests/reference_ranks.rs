@@ -174,8 +174,9 @@ fn atmwtag() -> (Vec<f64>, Vec<f64>) {
 #[test]
 fn atmwtag_mann_whitney_u() {
     // U1 = 450 (U2 = 126) for instrument 1 over 2, ties counting ½:
-    // derived with exact arithmetic in /work/shared/reference/nist/
-    // PROVENANCE.md from NIST StRD AtmWtAg — NOT a NIST-certified value.
+    // derived with exact arithmetic in the NIST provenance note
+    // (tests/reference/nist/PROVENANCE.md) from NIST StRD AtmWtAg — NOT a
+    // NIST-certified value.
     let (g1, g2) = atmwtag();
     assert_eq!((g1.len(), g2.len()), (24, 24));
     let t = mann_whitney(&g1, &g2, Alternative::TwoSided, 0.95).unwrap();

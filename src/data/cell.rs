@@ -174,8 +174,8 @@ impl Builder {
             nums.push(v);
         }
         if let Some(t) = &mut col.text {
-            let s = v.to_string();
-            let code = intern(t, &mut col.index, s.as_bytes(), false)?;
+            let shown = v.to_string();
+            let code = intern(t, &mut col.index, shown.as_bytes(), false)?;
             t.codes.push(code);
         }
         Ok(())
@@ -277,8 +277,8 @@ mod tests {
             ("123456789012345.6", b'.', 123_456_789_012_345.6),
             (".5", b'.', 0.5),
         ];
-        for (s, d, v) in cases {
-            assert_eq!(parse_number(s.as_bytes(), d), Ok(v), "{s}");
+        for (text, d, v) in cases {
+            assert_eq!(parse_number(text.as_bytes(), d), Ok(v), "{text}");
         }
     }
 

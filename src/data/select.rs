@@ -60,15 +60,15 @@ pub fn select(ds: &Dataset, plan: &Plan, h: &Hypothesis) -> Result<Selected> {
         } => assign(ds, condition, levels)?,
         Comparison::PairedColumns { .. } | Comparison::Reference { .. } => vec![FIRST; ds.rows],
     };
-    for (i, &s) in slots.iter().enumerate() {
-        match s {
-            FIRST | SECOND => flow.read[s as usize] += 1,
+    for (i, &slot) in slots.iter().enumerate() {
+        match slot {
+            FIRST | SECOND => flow.read[usize::from(slot)] += 1,
             OTHER => flow.other_levels += 1,
             _ => flow.no_group += 1,
         }
         let k = ds.excluded_by.get(i).copied().unwrap_or(0) as usize;
         if let Some(step) = k.checked_sub(1).and_then(|k| flow.rules.get_mut(k)) {
-            match s {
+            match slot {
                 FIRST => step.first += 1,
                 SECOND => step.second += 1,
                 _ => step.other += 1,
@@ -220,7 +220,7 @@ fn check_duplicates(
             let pos = ds.columns.get(pair_by).map(|c| c.position);
             return Err(Failure::input(format!(
                 "{pair_by} \"{u}\" has two rows with {condition} \"{}\" (lines {l1} and {l2})",
-                levels[s as usize]
+                levels[usize::from(s)]
             ))
             .at(&ds.source, l2, pos)
             .help(format!("a paired long layout needs exactly one row per {pair_by} and {condition}; remove or relabel the duplicate")));

@@ -113,13 +113,13 @@ fn push(b: &mut Builder, k: usize, cell: &Data) -> std::result::Result<(), (Prob
         Data::Float(v) => b.push_number(k, *v).map_err(|p| (p, v.to_string())),
         Data::Int(v) => b.push_number(k, *v as f64).map_err(|p| (p, v.to_string())),
         Data::Empty => b.push_text(k, b"").map_err(|p| (p, String::new())),
-        Data::String(s) | Data::DateTimeIso(s) | Data::DurationIso(s) => {
-            b.push_text(k, s.as_bytes()).map_err(|p| (p, s.clone()))
-        }
+        Data::String(text) | Data::DateTimeIso(text) | Data::DurationIso(text) => b
+            .push_text(k, text.as_bytes())
+            .map_err(|p| (p, text.clone())),
         other => {
             // Booleans, dates and formula errors: usable as labels or missing texts only.
-            let s = other.to_string();
-            b.push_text(k, s.as_bytes()).map_err(|p| (p, s))
+            let text = other.to_string();
+            b.push_text(k, text.as_bytes()).map_err(|p| (p, text))
         }
     }
 }

@@ -650,7 +650,7 @@ impl Checker<'_> {
             None => {
                 return Err(self
                     .at(p, "planning needs a target `power`")
-                    .help("add e.g. `power = 0.9`"))
+                    .help("add for example `power = 0.9`"))
             }
         };
         let ratio = positive(&r.ratio, "ratio")?;

@@ -9,7 +9,7 @@
 # sanitizer is off (`-s none`): attest is safe Rust, so what we hunt is
 # panics, and without it the targets run several times faster.
 #
-# libFuzzer grows its corpus in tests/fuzz/work/<target>/ (not committed),
+# libFuzzer grows its corpus in tests/fuzz/grown/<target>/ (not committed),
 # seeded from the committed tests/fuzz/corpus/<target>/. A crash is saved
 # under tests/fuzz/artifacts/<target>/; turn it into a regression test in
 # tests/bad_inputs/ or a unit test before fixing it.
@@ -20,9 +20,9 @@ root="$(cd "$here/../.." && pwd)"
 cd "$root"
 export RUSTC_BOOTSTRAP=1
 for target in plan data stats; do
-    mkdir -p "tests/fuzz/work/$target"
+    mkdir -p "tests/fuzz/grown/$target"
     echo "== $target: ${seconds}s"
     cargo fuzz run --fuzz-dir tests/fuzz -s none "$target" \
-        "tests/fuzz/work/$target" "tests/fuzz/corpus/$target" \
+        "tests/fuzz/grown/$target" "tests/fuzz/corpus/$target" \
         -- -max_total_time="$seconds" -max_len=4096 -timeout=10 -print_final_stats=1
 done
