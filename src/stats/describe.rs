@@ -72,18 +72,33 @@ pub fn describe_sorted(x: &[f64], sorted: &[f64]) -> Result<Descriptives, StatsE
     let sd = var.map(f64::sqrt);
     let se = sd.map(|s| s / nf.sqrt());
     let (g1, g2) = shape(nf, m2, m3, m4);
+    let (median, q1, q3) = (
+        quantile_sorted(sorted, 0.5),
+        quantile_sorted(sorted, 0.25),
+        quantile_sorted(sorted, 0.75),
+    );
+    // Finite values near ±1.8e308 overflow when summed or squared; that is
+    // a refusal with its own message, never an infinite SD in a report.
+    if !(mean.is_finite()
+        && sd.is_none_or(f64::is_finite)
+        && median.is_finite()
+        && q1.is_finite()
+        && q3.is_finite())
+    {
+        return Err(StatsError::Overflow);
+    }
     Ok(Descriptives {
         n,
         mean,
         sd,
         se,
-        median: quantile_sorted(sorted, 0.5),
-        q1: quantile_sorted(sorted, 0.25),
-        q3: quantile_sorted(sorted, 0.75),
+        median,
+        q1,
+        q3,
         min: sorted[0],
         max: sorted[n - 1],
-        skewness: g1,
-        excess_kurtosis: g2,
+        skewness: g1.filter(|v| v.is_finite()),
+        excess_kurtosis: g2.filter(|v| v.is_finite()),
     })
 }
 
@@ -139,7 +154,14 @@ pub fn quantile_sorted(sorted: &[f64], p: f64) -> f64 {
     let lo = h.floor() as usize;
     let hi = (lo + 1).min(n - 1);
     let frac = h - lo as f64;
-    sorted[lo] + frac * (sorted[hi] - sorted[lo])
+    let gap = sorted[hi] - sorted[lo];
+    if gap.is_finite() {
+        sorted[lo] + frac * gap
+    } else {
+        // The gap overflows only for values near ±1.8e308; weighting each
+        // end separately stays finite.
+        sorted[lo] * (1.0 - frac) + sorted[hi] * frac
+    }
 }
 
 /// Median of an unsorted sample (sorts a copy).
@@ -175,6 +197,18 @@ mod tests {
             describe(&[1.0, f64::NAN]).unwrap_err(),
             StatsError::NonFinite
         );
+    }
+
+    /// Regression for a fuzzing find (tests/fuzz, stats target, 2026-12-01):
+    /// values near ±1.7e308 gave an infinite SD and a NaN skewness.
+    #[test]
+    fn overflowing_spread_is_refused() {
+        let x = [-1.7e308, -1.175e308, 1.175e308, 1.7e308];
+        assert_eq!(describe(&x).unwrap_err(), StatsError::Overflow);
+        // Quartiles of huge but representable values stay finite.
+        let mut s = x.to_vec();
+        s.sort_by(f64::total_cmp);
+        assert!(quantile_sorted(&s, 0.5).is_finite());
     }
 
     #[test]
