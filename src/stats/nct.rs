@@ -33,9 +33,9 @@
 //! Gauss–Kronrod quadrature of `P(Z ≥ |δ| + t·S)` over the distribution of
 //! `S = √(χ²_ν/ν)`, whose integrand is positive.
 
+use super::dist::beta_reg;
 use super::dist::{brent, normal_cdf, normal_sf};
 use super::Alternative;
-use statrs::function::beta::beta_reg;
 use statrs::function::gamma::ln_gamma;
 
 /// Relative size below which the remaining Poisson weight is dropped.
