@@ -10,7 +10,7 @@ use crate::data::Selected;
 use crate::error::{Failure, Result};
 use crate::plan::{Comparison, Design, Hypothesis, Method, Plan};
 use crate::results::*;
-use crate::stats::{self, describe, Alternative, Interval, StatsError};
+use crate::stats::{self, describe, Alternative, StatsError};
 
 /// Figures draw at most this many points per set; larger sets are drawn
 /// from evenly spaced order statistics (so the quantiles stay exact).
@@ -331,17 +331,12 @@ fn choose(planned: Method, design: Design, c: &Checks) -> Method {
     }
 }
 
-fn interval_bounds(i: &Interval) -> (Option<f64>, Option<f64>) {
-    (i.low, i.high)
-}
-
 fn effect(name: &str, e: &stats::effect::Effect) -> EffectSize {
-    let (lo, hi) = interval_bounds(&e.interval);
     EffectSize {
         name: name.into(),
         value: e.value,
-        ci_low: lo,
-        ci_high: hi,
+        ci_low: e.interval.low,
+        ci_high: e.interval.high,
     }
 }
 
