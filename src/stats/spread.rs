@@ -59,8 +59,19 @@ fn deviation_anova(
         }
         ensure_finite(g)?;
     }
-    let zx = abs_dev(x, centre(x));
-    let zy = abs_dev(y, centre(y));
+    let mut zx = abs_dev(x, centre(x));
+    let mut zy = abs_dev(y, centre(y));
+    // F is scale-free, so the deviations are divided by their largest
+    // before squaring: squares of values beyond about 1e154 would
+    // overflow. A deviation that itself overflows cannot be rescued.
+    let scale = zx.iter().chain(&zy).fold(0.0_f64, |m, v| m.max(*v));
+    if !scale.is_finite() {
+        return Err(StatsError::Overflow);
+    }
+    if scale == 0.0 {
+        return Err(StatsError::ZeroVariance);
+    }
+    zx.iter_mut().chain(zy.iter_mut()).for_each(|v| *v /= scale);
     let (mx, my) = (mean(&zx), mean(&zy));
     let (n1, n2) = (zx.len() as f64, zy.len() as f64);
     let n = n1 + n2;
@@ -72,6 +83,11 @@ fn deviation_anova(
     }
     let df2 = n - 2.0;
     let f = between / (within / df2);
+    if !f.is_finite() {
+        // Within-group spread negligible next to the between-group one: as
+        // good as zero, and no F would mean anything.
+        return Err(StatsError::ZeroVariance);
+    }
     Ok(SpreadTest {
         f,
         df1: 1.0,
@@ -91,6 +107,27 @@ fn sum_sq(z: &[f64], m: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn huge_deviations_do_not_overflow() {
+        // Found by the stats fuzz target (2026-12-01): squaring deviations
+        // near 1e231 overflowed and F came out infinite with p = 0.
+        let x = [-3.104_278_119_126_661_7e231, 3.210_205_749_342_177_5e-75];
+        let y = [2_194_728_218_623.926, 1.5e-323, 9.06732e-318];
+        for r in [brown_forsythe(&x, &y), levene(&x, &y)] {
+            match r {
+                Ok(s) => assert!(s.f.is_finite() && (0.0..=1.0).contains(&s.p), "{s:?}"),
+                Err(e) => assert!(matches!(e, StatsError::ZeroVariance | StatsError::Overflow)),
+            }
+        }
+        // Rescaling leaves F unchanged (F is scale-free): the same data
+        // divided by 1e200 give the same F to rounding.
+        let a = [1.0, 2.0, 4.0, 7.0];
+        let b = [3.0, 3.5, 9.0];
+        let small = |v: &[f64]| v.iter().map(|t| t * 1e-200).collect::<Vec<_>>();
+        let (f1, f2) = (levene(&a, &b).unwrap().f, levene(&small(&a), &small(&b)).unwrap().f);
+        assert!((f1 - f2).abs() <= 1e-12 * f1, "{f1} vs {f2}");
+    }
 
     #[test]
     fn hand_worked_levene() {
