@@ -43,9 +43,7 @@ pub fn describe(x: &[f64]) -> Result<Descriptives, StatsError> {
         return Err(StatsError::TooFew { needed: 1, got: 0 });
     }
     ensure_finite(x)?;
-    let mut sorted = x.to_vec();
-    sorted.sort_unstable_by(f64::total_cmp);
-    describe_sorted(x, &sorted)
+    describe_sorted(x, &super::sorted(x))
 }
 
 /// Describes a sample whose sorted copy the caller already has (the rank
@@ -164,11 +162,9 @@ pub fn quantile_sorted(sorted: &[f64], p: f64) -> f64 {
     }
 }
 
-/// Median of an unsorted sample (sorts a copy).
+/// Median of a sample (sorts a copy unless it is sorted already).
 pub fn median(x: &[f64]) -> f64 {
-    let mut s = x.to_vec();
-    s.sort_unstable_by(f64::total_cmp);
-    quantile_sorted(&s, 0.5)
+    quantile_sorted(&super::sorted(x), 0.5)
 }
 
 #[cfg(test)]

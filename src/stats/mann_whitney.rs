@@ -75,10 +75,7 @@ pub fn mann_whitney(
         }
         ensure_finite(g)?;
     }
-    let mut xs = x.to_vec();
-    let mut ys = y.to_vec();
-    xs.sort_unstable_by(f64::total_cmp);
-    ys.sort_unstable_by(f64::total_cmp);
+    let (xs, ys) = (super::sorted(x), super::sorted(y));
     let (n1, n2) = (xs.len(), ys.len());
     let (u1, ties) = u_statistic_sorted(&xs, &ys);
     let cells = n1 as f64 * n2 as f64;
@@ -113,7 +110,10 @@ pub fn mann_whitney(
     };
     let count = n1 * n2;
     let kth = |i: usize| kth_pairwise_difference_sorted(&xs, &ys, i);
-    let interval = order_interval(k, count, alt, level, kth);
+    let (estimate, interval) = rayon::join(
+        || hl_shift_sorted(&xs, &ys),
+        || order_interval(k, count, alt, level, kth),
+    );
     // (U1 − U2)/(n1n2) = 2U1/(n1n2) − 1, written so swapping groups
     // negates it exactly.
     let r = (u1 - (cells - u1)) / cells;
@@ -126,7 +126,7 @@ pub fn mann_whitney(
         z,
         n_used: n1 + n2,
         zeros_dropped: 0,
-        estimate: hl_shift_sorted(&xs, &ys)?,
+        estimate: estimate?,
         interval,
         rank_biserial: r,
         rank_biserial_interval: fisher_interval(r, se, bound, alt, level),

@@ -101,9 +101,9 @@ pub enum StatsError {
     /// Every value is the same, so the spread is zero.
     #[error("all values are identical, so the spread is zero")]
     ZeroVariance,
-    /// The values are finite but so large that a sum, difference or square
-    /// of them exceeds the largest double (about ±1.8e308).
-    #[error("the values are so large that their sums or squares exceed the largest representable number (about 1.8e308)")]
+    /// The values are finite but a sum, difference, square or ratio of
+    /// them exceeds the largest double (about ±1.8e308).
+    #[error("a sum, square or ratio of the values exceeds the largest representable number (about 1.8e308)")]
     Overflow,
     /// Every paired difference (or difference from the reference) is zero.
     #[error("every difference is zero")]
@@ -125,6 +125,18 @@ pub enum StatsError {
         /// The value given.
         got: usize,
     },
+}
+
+/// `x` in ascending (total) order: borrowed when it already is, which the
+/// analysis arranges for large samples, otherwise a sorted copy.
+pub fn sorted(x: &[f64]) -> std::borrow::Cow<'_, [f64]> {
+    if x.is_sorted_by(|a, b| a.total_cmp(b).is_le()) {
+        std::borrow::Cow::Borrowed(x)
+    } else {
+        let mut v = x.to_vec();
+        v.sort_unstable_by(f64::total_cmp);
+        std::borrow::Cow::Owned(v)
+    }
 }
 
 /// Checks that every value is finite.

@@ -102,7 +102,10 @@ pub fn wilcoxon_signed_rank(
         }
     };
     let kth = |i: usize| kth_walsh_average_sorted(&ds, i);
-    let interval = order_interval(k, count, alt, level, kth);
+    let (estimate, interval) = rayon::join(
+        || hl_one_sample_sorted(&ds),
+        || order_interval(k, count, alt, level, kth),
+    );
     let r = (w_plus - (total - w_plus)) / total;
     let se = 2.0 * sigma / total;
     let bound = 1.0 - 1.0 / total;
@@ -113,7 +116,7 @@ pub fn wilcoxon_signed_rank(
         z,
         n_used: n,
         zeros_dropped: zeros,
-        estimate: hl_one_sample_sorted(&ds)?,
+        estimate: estimate?,
         interval,
         rank_biserial: r,
         rank_biserial_interval: fisher_interval(r, se, bound, alt, level),
