@@ -32,10 +32,17 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
     };
     let labels = labels(h);
     let Selected {
-        first,
-        second,
+        mut first,
+        mut second,
         flow,
     } = sel;
+    // Every statistic of an independent group is blind to the order of its
+    // values, so each group is sorted once here, on both cores when large;
+    // the sorts inside the statistics then find sorted input and finish in
+    // one pass. Paired values keep their order (pairs and figures need it).
+    if h.design == Design::Independent {
+        rayon::join(|| sort_values(&mut first), || sort_values(&mut second));
+    }
     // The values the one-sample machinery works on: differences (paired) or
     // the sample itself (one-sample, tested against `reference`).
     let (diffs, reference) = match &h.comparison {
@@ -50,6 +57,8 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
         Comparison::Reference { reference } => (first.clone(), *reference),
         Comparison::Groups { .. } => (Vec::new(), 0.0),
     };
+    let mut diffs = diffs;
+    sort_values(&mut diffs);
     let groups = summaries(h, &labels, &first, &second, &diffs, level)
         .map_err(|e| fail("cannot describe the data", e))?;
     let checks = checks(plan, h, &labels, &first, &second, &diffs);
@@ -58,7 +67,16 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
     if h.method == Method::Checked {
         checks.branch = Some(branch(h.design, &checks));
     }
-    let run = |m: Method| run_method(m, h.alternative, level, &first, &second, &diffs, reference);
+    let d_once = std::cell::OnceCell::new();
+    let run = |m: Method| {
+        let data = Values {
+            first: &first,
+            second: &second,
+            diffs: &diffs,
+            reference,
+        };
+        run_method(m, h.alternative, level, &data, &d_once)
+    };
     let test =
         run(method).map_err(|e| fail(&format!("{} cannot be computed", method.as_str()), e))?;
     let robustness = if h.robustness {
@@ -131,6 +149,16 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
         paired_plot,
         planning,
     })
+}
+
+/// Sorts ascending (total order), in parallel for large samples.
+fn sort_values(v: &mut [f64]) {
+    use rayon::slice::ParallelSliceMut;
+    if v.len() >= 1 << 16 {
+        v.par_sort_unstable_by(f64::total_cmp);
+    } else {
+        v.sort_unstable_by(f64::total_cmp);
+    }
 }
 
 /// Applies the plan's multiplicity correction and the decisions.
@@ -340,15 +368,29 @@ fn effect(name: &str, e: &stats::effect::Effect) -> EffectSize {
     }
 }
 
+/// The values one hypothesis's methods run on.
+struct Values<'a> {
+    first: &'a [f64],
+    second: &'a [f64],
+    /// Paired differences, or the one-sample values.
+    diffs: &'a [f64],
+    /// The one-sample reference value (0 otherwise).
+    reference: f64,
+}
+
 fn run_method(
     m: Method,
     alt: Alternative,
     level: f64,
-    first: &[f64],
-    second: &[f64],
-    diffs: &[f64],
-    reference: f64,
+    v: &Values,
+    d_once: &std::cell::OnceCell<std::result::Result<stats::effect::Effect, StatsError>>,
 ) -> std::result::Result<TestResult, StatsError> {
+    let Values {
+        first,
+        second,
+        diffs,
+        reference,
+    } = *v;
     use stats::{
         effect as fx, mann_whitney::mann_whitney, rank_tests as rk, ttest as tt,
         wilcoxon::wilcoxon_signed_rank,
@@ -412,8 +454,11 @@ fn run_method(
             } else {
                 tt::welch_t(first, second, alt, level)?
             };
-            let d = fx::cohens_d(first, second, alt, level)?;
-            let g = fx::hedges_g(first, second, alt, level)?;
+            // Student and Welch share d (pooled SD) and g; compute them once.
+            let d = d_once
+                .get_or_init(|| fx::cohens_d(first, second, alt, level))
+                .clone()?;
+            let g = fx::hedges_from_d(&d, first.len() + second.len())?;
             t_result(m, t, vec![effect("cohen-d", &d), effect("hedges-g", &g)])
         }
         Method::PairedT | Method::OneSampleT => {
@@ -479,8 +524,7 @@ fn equivalence(
 /// Figure data: every value up to [`PLOT_POINTS`], otherwise evenly spaced
 /// order statistics; a histogram over all values either way.
 pub fn plot_set(label: &str, x: &[f64]) -> PlotData {
-    let mut sorted = x.to_vec();
-    sorted.sort_unstable_by(f64::total_cmp);
+    let sorted = stats::sorted(x);
     let n = sorted.len();
     let (points, sampled) = if n <= PLOT_POINTS {
         (x.to_vec(), false)

@@ -87,14 +87,25 @@ pub fn hedges_g(x: &[f64], y: &[f64], alt: Alternative, level: f64) -> Result<Ef
             got: total,
         });
     }
-    let d = cohens_d(x, y, alt, level)?;
+    hedges_from_d(&cohens_d(x, y, alt, level)?, total)
+}
+
+/// Hedges' g from an already computed Cohen's d of `total` values: d and
+/// its interval bounds times [`hedges_correction`]. Needs `total ≥ 4`.
+pub fn hedges_from_d(d: &Effect, total: usize) -> Result<Effect, StatsError> {
+    if total < 4 {
+        return Err(StatsError::TooFew {
+            needed: 4,
+            got: total,
+        });
+    }
     let j = hedges_correction(total as f64 - 2.0);
     Ok(Effect {
         value: d.value * j,
         interval: Interval {
             low: d.interval.low.map(|v| v * j),
             high: d.interval.high.map(|v| v * j),
-            level,
+            level: d.interval.level,
         },
     })
 }

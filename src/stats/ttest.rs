@@ -66,6 +66,10 @@ pub fn from_estimate(
         return Err(StatsError::ZeroVariance);
     }
     let t = estimate / se;
+    if !t.is_finite() {
+        // A spread below about 1e-308 of the difference (fuzzing find).
+        return Err(StatsError::Overflow);
+    }
     let p = p_from_symmetric(t, alt, |s| t_sf(s, df));
     let interval = match alt {
         Alternative::TwoSided => {
@@ -162,6 +166,29 @@ pub(crate) struct TwoGroups {
     pub ss2: f64,
 }
 
+/// Mean and sum of squared deviations of `x − shift`, computed as
+/// [`mean`] and [`variance`] would on the shifted copy (a corrected
+/// two-pass mean, then the corrected two-pass sum of squares; Chan, Golub
+/// & LeVeque 1983, "Algorithms for computing the sample variance", Amer.
+/// Statist. 37(3), 242–247), without making the copy. The sum of squares
+/// is 0 for a single value.
+fn shifted_moments(x: &[f64], shift: f64) -> (f64, f64) {
+    let n = x.len() as f64;
+    let m0 = x.iter().map(|v| v - shift).sum::<f64>() / n;
+    let r = x.iter().map(|v| (v - shift) - m0).sum::<f64>() / n;
+    let m = m0 + r;
+    if x.len() < 2 {
+        return (m, 0.0);
+    }
+    let (mut ss, mut comp) = (0.0, 0.0);
+    for v in x {
+        let d = (v - shift) - m;
+        ss += d * d;
+        comp += d;
+    }
+    (m, (ss - comp * comp / n).max(0.0))
+}
+
 impl TwoGroups {
     /// Summarises two finite, non-empty groups.
     pub(crate) fn new(x: &[f64], y: &[f64]) -> Result<Self, StatsError> {
@@ -171,16 +198,17 @@ impl TwoGroups {
             }
             ensure_finite(g)?;
         }
+        // Both groups shifted by x[0] (exact for values of like magnitude),
+        // so the difference of means does not lose digits to a large offset.
         let shift = x[0];
-        let xc: Vec<f64> = x.iter().map(|v| v - shift).collect();
-        let yc: Vec<f64> = y.iter().map(|v| v - shift).collect();
-        let ss = |g: &[f64]| variance(g).map_or(0.0, |v| v * (g.len() as f64 - 1.0));
+        let (m1, ss1) = shifted_moments(x, shift);
+        let (m2, ss2) = shifted_moments(y, shift);
         Ok(TwoGroups {
             n1: x.len() as f64,
             n2: y.len() as f64,
-            diff: mean(&xc) - mean(&yc),
-            ss1: ss(&xc),
-            ss2: ss(&yc),
+            diff: m1 - m2,
+            ss1,
+            ss2,
         })
     }
 
@@ -243,6 +271,20 @@ pub(crate) fn welch_parts(x: &[f64], y: &[f64]) -> Result<(f64, f64, f64), Stats
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_statistic_beyond_the_doubles_is_refused() {
+        // Found by the stats fuzz target (2026-12-01): an estimate of
+        // 1.5e155 over a standard error of 1.4e-154 gave t = inf.
+        let r = from_estimate(
+            1.541_897_911_947_300_9e155,
+            1.367_362_467_386_718_6e-154,
+            2.0,
+            Alternative::Greater,
+            0.99,
+        );
+        assert_eq!(r, Err(StatsError::Overflow));
+    }
 
     #[test]
     fn hand_worked_one_sample() {
