@@ -216,16 +216,21 @@ pub fn used_columns(plan: &Plan) -> Vec<Use> {
 /// the plan's exclusion rules.
 pub fn load(plan: &Plan, plan_dir: &Path) -> Result<Dataset> {
     let path = plan_dir.join(&plan.data.path);
-    let bytes = std::fs::read(&path).map_err(|e| {
-        Failure::io("read the data file", &path, &e)
-            .help("check `path` in [data]; it is relative to the analysis file")
-    })?;
-    let sha256 = crate::plan::canonical::sha256_hex(&bytes);
     let display = plan.data.path.clone();
     let wanted = used_columns(plan);
-    let table = match plan.data.format {
-        DataFormat::Delimited => read::read_delimited(&bytes, &display, &plan.data, &wanted)?,
-        DataFormat::Xlsx => xlsx::read_xlsx(bytes, &display, &plan.data, &wanted)?,
+    let (table, sha256) = match plan.data.format {
+        DataFormat::Delimited => read::read_delimited_file(&path, &display, &plan.data, &wanted)?,
+        DataFormat::Xlsx => {
+            let bytes = std::fs::read(&path).map_err(|e| {
+                Failure::io("read the data file", &path, &e)
+                    .help("check `path` in [data]; it is relative to the analysis file")
+            })?;
+            let sha256 = crate::plan::canonical::sha256_hex(&bytes);
+            (
+                xlsx::read_xlsx(bytes, &display, &plan.data, &wanted)?,
+                sha256,
+            )
+        }
     };
     let mut ds = Dataset {
         display_path: display,

@@ -1,12 +1,17 @@
-//! Delimited text (CSV, semicolon files, TSV) read in one streaming pass.
+//! Delimited text (CSV, semicolon files, TSV), read in one streaming pass.
 //!
 //! The header row is required and columns are found by name. Only the used
 //! columns are looked at; each is handed to [`cell::Builder`](super::cell::Builder).
-//! A UTF-8 byte-order mark and CRLF line ends are accepted. A file without
-//! quote characters is split at line ends into chunks parsed in parallel
-//! (rayon), then joined in order; a file with quotes (whose fields may
-//! contain line breaks) is read in one sequential pass. Both give the same
-//! columns and the same messages.
+//! A UTF-8 byte-order mark and CRLF line ends are accepted.
+//!
+//! A file is read in blocks of [`BLOCK`] bytes, each cut after its last
+//! line end that is outside quotes, hashed and parsed while the next is
+//! read, so memory holds one block (plus the used columns), never the
+//! whole file. Within a block without quote characters the text is split at
+//! line ends into chunks parsed in parallel (rayon) and joined in order; a
+//! block with quotes (whose fields may contain line breaks) is parsed in
+//! one sequential pass. Every way gives the same columns and messages.
+//! More than [`MAX_ROWS`] data rows are refused.
 
 use super::cell::{self, Builder};
 use super::{locate, LineMap, Table, Use};
@@ -18,123 +23,271 @@ use std::collections::HashMap;
 /// Chunks smaller than this are not worth a thread.
 const MIN_CHUNK: usize = 1 << 22;
 
-/// Reads a delimited text file's used columns.
+/// Bytes read from the file at a time (a block grows only when a single
+/// record is longer).
+pub const BLOCK: usize = 1 << 23;
+
+/// The most data rows a file may have. Each used column keeps 8 bytes
+/// (numbers) or 4 bytes (labels) per row, and the statistics work on
+/// copies of the selected values, so this bounds memory to a few GB; a
+/// larger file is refused with a message rather than exhausting memory.
+pub const MAX_ROWS: usize = 50_000_000;
+
+/// Reads a delimited text file's used columns from memory.
 pub fn read_delimited(
     bytes: &[u8],
     source: &str,
     spec: &DataSpec,
     wanted: &[Use],
 ) -> Result<Table> {
-    read_in_chunks(
-        bytes,
-        source,
-        spec,
-        wanted,
-        rayon::current_num_threads(),
-        MIN_CHUNK,
-    )
+    let mut rest = bytes;
+    let io = |e: std::io::Error| Failure::internal(format!("reading from memory failed: {e}"));
+    let (table, _) = read_stream(&mut rest, source, spec, wanted, Limits::default(), io)?;
+    Ok(table)
 }
 
-/// [`read_delimited`] with the number of chunks and their smallest size given.
-fn read_in_chunks(
-    bytes: &[u8],
+/// Reads a delimited text file's used columns from `path` in blocks,
+/// returning them with the SHA-256 (hex) of the file's bytes.
+pub fn read_delimited_file(
+    path: &std::path::Path,
     source: &str,
     spec: &DataSpec,
     wanted: &[Use],
+) -> Result<(Table, String)> {
+    let file = std::fs::File::open(path).map_err(|e| {
+        Failure::io("read the data file", path, &e)
+            .help("check `path` in [data]; it is relative to the analysis file")
+    })?;
+    let io = |e: std::io::Error| Failure::io("read the data file", path, &e);
+    read_stream(file, source, spec, wanted, Limits::default(), io)
+}
+
+/// Block size, chunking and row limit of one read (tests shrink them).
+#[derive(Clone, Copy)]
+struct Limits {
+    block: usize,
     threads: usize,
     min_chunk: usize,
-) -> Result<Table> {
-    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
-    if bytes.iter().all(|b| b.is_ascii_whitespace()) {
-        return Err(Failure::input("the data file is empty")
-            .in_file(source)
-            .help("the file needs a header row naming the columns, then one row per observation"));
-    }
-    let delim = spec.delimiter as u8;
-    let mut rdr = reader(delim, bytes);
-    let mut header = csv::ByteRecord::new();
-    // The first non-empty record is the header (the csv crate skips blank lines).
-    rdr.read_byte_record(&mut header)
-        .map_err(|e| csv_failure(&e, source, 1))?;
-    let header_start = skip_breaks(bytes, header.position().map_or(0, |p| p.byte() as usize));
-    let header_line = 1 + breaks(&bytes[..header_start]);
-    let names = header
-        .iter()
-        .enumerate()
-        .map(|(i, h)| {
-            std::str::from_utf8(h).map(|s| s.trim().to_string()).map_err(|_| {
-                Failure::input("the header row is not valid UTF-8 text")
-                    .at(source, header_line, Some(i + 1))
-                    .help("save the data file as UTF-8 (most spreadsheet programs offer \"CSV UTF-8\")")
-            })
-        })
-        .collect::<Result<Vec<String>>>()?;
-    if let [only] = names.as_slice() {
-        if let Some(d) = [',', ';', '\t', '|']
-            .into_iter()
-            .find(|d| *d != spec.delimiter && only.contains(*d))
-        {
-            return Err(Failure::input(format!(
-                "the header row reads as one column, \"{only}\"; the delimiter looks like \"{}\", not \"{}\"",
-                d.escape_default(),
-                spec.delimiter.escape_default()
-            ))
-            .at(source, header_line, None)
-            .help(format!("set `delimiter = \"{}\"` in [data]", d.escape_default())));
+    max_rows: usize,
+}
+
+impl Default for Limits {
+    fn default() -> Self {
+        Limits {
+            block: BLOCK,
+            threads: rayon::current_num_threads(),
+            min_chunk: MIN_CHUNK,
+            max_rows: MAX_ROWS,
         }
     }
-    let index = locate(&names, wanted, source, header_line)?;
-    // The reader may stop between the \r and \n of the header's line end.
-    let mut body_start = (rdr.position().byte() as usize).min(bytes.len());
-    if body_start > 0 && bytes[body_start - 1] == b'\r' && bytes.get(body_start) == Some(&b'\n') {
-        body_start += 1;
+}
+
+/// Appends up to `want` more bytes from `r` to `buf`; false at end of input.
+fn fill(
+    r: &mut impl std::io::Read,
+    buf: &mut Vec<u8>,
+    want: usize,
+    io: &impl Fn(std::io::Error) -> Failure,
+) -> Result<bool> {
+    use std::io::Read;
+    buf.reserve(want.min(BLOCK));
+    let got = r.by_ref().take(want as u64).read_to_end(buf).map_err(io)?;
+    Ok(got == want)
+}
+
+/// The offset just after the last line feed of `buf[from..]` that lies
+/// outside quotes (an even number of `"` since `buf[from]`, which is at a
+/// record boundary), if there is one.
+fn record_cut(buf: &[u8], from: usize) -> Option<usize> {
+    let part = &buf[from..];
+    if !part.contains(&b'"') {
+        return part.iter().rposition(|&b| b == b'\n').map(|p| from + p + 1);
     }
-    let body = &bytes[body_start..];
-    let first_line = 1 + breaks(&bytes[..body_start]);
+    let mut inside = false;
+    let mut cut = None;
+    for (i, &b) in part.iter().enumerate() {
+        match b {
+            b'"' => inside = !inside,
+            b'\n' if !inside => cut = Some(from + i + 1),
+            _ => {}
+        }
+    }
+    cut
+}
+
+/// Reads blocks from `r` (see the module notes): the header from the first
+/// complete records, then each block's complete records, hashing every
+/// byte read. Returns the table and the SHA-256 of all the bytes.
+fn read_stream(
+    mut r: impl std::io::Read,
+    source: &str,
+    spec: &DataSpec,
+    wanted: &[Use],
+    limits: Limits,
+    io: impl Fn(std::io::Error) -> Failure,
+) -> Result<(Table, String)> {
+    use sha2::{Digest, Sha256};
+    let mut hasher = Sha256::new();
+    let mut buf: Vec<u8> = Vec::new();
+    let mut more = fill(&mut r, &mut buf, limits.block, &io)?;
+    // The first cut must hold the header: grow until a record ends.
+    let mut cut = loop {
+        match (more, record_cut(&buf, 0)) {
+            (false, _) => break buf.len(),
+            (true, Some(c)) => break c,
+            (true, None) => more = fill(&mut r, &mut buf, limits.block, &io)?,
+        }
+    };
+    let bom = if buf.starts_with(b"\xEF\xBB\xBF") {
+        3
+    } else {
+        0
+    };
+    let head = Header::read(&buf[bom..cut], source, spec, wanted)?;
     let job = Job {
-        delim,
-        ncols: names.len(),
-        index: &index,
+        delim: spec.delimiter as u8,
+        ncols: head.ncols,
+        index: &head.index,
         wanted,
         spec,
         source,
     };
-    let chunks = split(body, threads, min_chunk);
-    let parts: Vec<Part> = if chunks.len() == 1 {
-        vec![job.chunk(body, first_line)?]
-    } else {
-        // Line number of each chunk's first byte: count the line ends before it.
-        let counts: Vec<usize> = chunks
-            .par_iter()
-            .map(|(a, b)| body[*a..*b].iter().filter(|&&x| x == b'\n').count())
-            .collect();
-        let mut line = first_line;
-        let mut firsts = Vec::with_capacity(counts.len());
-        for c in &counts {
-            firsts.push(line);
-            line += c;
+    let mut parts: Vec<Part> = Vec::new();
+    let mut rows = 0usize;
+    let mut line = head.first_line;
+    let mut start = bom + head.body_start;
+    loop {
+        let body = &buf[start..cut];
+        let ((), parsed) = rayon::join(
+            || hasher.update(&buf[..cut]),
+            || job.parse(body, line, limits.threads, limits.min_chunk),
+        );
+        let (new_parts, lines_in) = parsed?;
+        rows += new_parts.iter().map(|p| p.rows).sum::<usize>();
+        if rows > limits.max_rows {
+            return Err(too_many_rows(source, limits.max_rows));
         }
-        chunks
-            .par_iter()
-            .zip(firsts)
-            .map(|((a, b), l)| job.chunk(&body[*a..*b], l))
-            .collect::<Result<Vec<Part>>>()?
-    };
-    let rows: usize = parts.iter().map(|p| p.rows).sum();
+        parts.extend(new_parts);
+        line += lines_in;
+        if !more {
+            break;
+        }
+        // Keep the incomplete record, read the next block after it.
+        buf.drain(..cut);
+        start = 0;
+        more = fill(&mut r, &mut buf, limits.block, &io)?;
+        cut = loop {
+            match (more, record_cut(&buf, 0)) {
+                (false, _) => break buf.len(),
+                (true, Some(c)) => break c,
+                (true, None) => more = fill(&mut r, &mut buf, limits.block, &io)?,
+            }
+        };
+    }
+    let sha = hex(&hasher.finalize());
     if rows == 0 {
         return Err(
             Failure::input("the data file has a header row but no data rows")
-                .at(source, header_line, None)
+                .at(source, head.line, None)
                 .help("check that the file was saved completely"),
         );
     }
-    let (columns, lines) = join(parts, wanted, &index);
-    Ok(Table {
-        rows,
-        source: source.to_string(),
-        columns,
-        lines,
-    })
+    let (columns, lines) = join(parts, wanted, &head.index);
+    Ok((
+        Table {
+            rows,
+            source: source.to_string(),
+            columns,
+            lines,
+        },
+        sha,
+    ))
+}
+
+fn hex(digest: &[u8]) -> String {
+    digest.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+fn too_many_rows(source: &str, max: usize) -> Failure {
+    Failure::input(format!(
+        "the data file has more than {max} data rows, the most attest reads"
+    ))
+    .in_file(source)
+    .help("attest keeps the used columns in memory; split the data (for example by site or period) and analyse each part, or select the rows you need before running")
+}
+
+/// What the header row tells: where each used column is and where the data start.
+struct Header {
+    /// Fields per row.
+    ncols: usize,
+    /// 0-based position of each used column.
+    index: Vec<usize>,
+    /// Offset of the first data byte (after the header's line end).
+    body_start: usize,
+    /// Line of the header row.
+    line: usize,
+    /// Line of the first data byte.
+    first_line: usize,
+}
+
+impl Header {
+    /// Reads the header from complete records `bytes` (the BOM removed).
+    fn read(bytes: &[u8], source: &str, spec: &DataSpec, wanted: &[Use]) -> Result<Header> {
+        if bytes.iter().all(|b| b.is_ascii_whitespace()) {
+            return Err(Failure::input("the data file is empty")
+                .in_file(source)
+                .help(
+                    "the file needs a header row naming the columns, then one row per observation",
+                ));
+        }
+        let delim = spec.delimiter as u8;
+        let mut rdr = reader(delim, bytes);
+        let mut header = csv::ByteRecord::new();
+        // The first non-empty record is the header (the csv crate skips blank lines).
+        rdr.read_byte_record(&mut header)
+            .map_err(|e| csv_failure(&e, source, 1))?;
+        let header_start = skip_breaks(bytes, header.position().map_or(0, |p| p.byte() as usize));
+        let header_line = 1 + breaks(&bytes[..header_start]);
+        let names = header
+            .iter()
+            .enumerate()
+            .map(|(i, h)| {
+                std::str::from_utf8(h).map(|s| s.trim().to_string()).map_err(|_| {
+                    Failure::input("the header row is not valid UTF-8 text")
+                        .at(source, header_line, Some(i + 1))
+                        .help("save the data file as UTF-8 (most spreadsheet programs offer \"CSV UTF-8\")")
+                })
+            })
+            .collect::<Result<Vec<String>>>()?;
+        if let [only] = names.as_slice() {
+            if let Some(d) = [',', ';', '\t', '|']
+                .into_iter()
+                .find(|d| *d != spec.delimiter && only.contains(*d))
+            {
+                return Err(Failure::input(format!(
+                    "the header row reads as one column, \"{only}\"; the delimiter looks like \"{}\", not \"{}\"",
+                    d.escape_default(),
+                    spec.delimiter.escape_default()
+                ))
+                .at(source, header_line, None)
+                .help(format!("set `delimiter = \"{}\"` in [data]", d.escape_default())));
+            }
+        }
+        let index = locate(&names, wanted, source, header_line)?;
+        // The reader may stop between the \r and \n of the header's line end.
+        let mut body_start = (rdr.position().byte() as usize).min(bytes.len());
+        if body_start > 0 && bytes[body_start - 1] == b'\r' && bytes.get(body_start) == Some(&b'\n')
+        {
+            body_start += 1;
+        }
+        Ok(Header {
+            ncols: names.len(),
+            index,
+            body_start,
+            line: header_line,
+            first_line: 1 + breaks(&bytes[..body_start]),
+        })
+    }
 }
 
 fn reader(delim: u8, bytes: &[u8]) -> csv::Reader<&[u8]> {
@@ -213,7 +366,104 @@ struct Part {
 }
 
 impl Job<'_> {
+    /// Parses complete records `body` starting on `first_line`, in chunks
+    /// when it is large and has no quotes. Returns the parts in order and
+    /// the line feeds in `body` (where the next body's lines continue).
+    fn parse(
+        &self,
+        body: &[u8],
+        first_line: usize,
+        threads: usize,
+        min_chunk: usize,
+    ) -> Result<(Vec<Part>, usize)> {
+        let chunks = split(body, threads, min_chunk);
+        // Line feeds in each chunk: each next chunk's first line follows.
+        let counts: Vec<usize> = chunks
+            .par_iter()
+            .map(|(a, b)| body[*a..*b].iter().filter(|&&x| x == b'\n').count())
+            .collect();
+        let mut line = first_line;
+        let mut firsts = Vec::with_capacity(counts.len());
+        for c in &counts {
+            firsts.push(line);
+            line += c;
+        }
+        let parts = chunks
+            .par_iter()
+            .zip(firsts)
+            .map(|((a, b), l)| self.chunk(&body[*a..*b], l))
+            .collect::<Result<Vec<Part>>>()?;
+        Ok((parts, line - first_line))
+    }
+
     fn chunk(&self, bytes: &[u8], first_line: usize) -> Result<Part> {
+        if !bytes.contains(&b'"') {
+            if let Some(part) = self.plain_chunk(bytes, first_line) {
+                return Ok(part);
+            }
+        }
+        self.csv_chunk(bytes, first_line)
+    }
+
+    /// The fast path for a chunk without quote characters (the common
+    /// case): lines split at line feeds and fields at the delimiter with
+    /// `memchr`, no csv state machine. Anything irregular (a lone carriage
+    /// return, a row with the wrong number of fields, a cell that does not
+    /// read) gives `None`, and [`Self::csv_chunk`] reads the chunk again and
+    /// words the message, so both paths agree on every table and error.
+    fn plain_chunk(&self, bytes: &[u8], first_line: usize) -> Option<Part> {
+        let mut b = Builder::new(self.wanted, self.spec.decimal, &self.spec.missing);
+        let mut slot = vec![usize::MAX; self.ncols];
+        for (k, &i) in self.index.iter().enumerate() {
+            slot[i] = k;
+        }
+        let mut lines = LineMap {
+            first: first_line,
+            jumps: Vec::new(),
+        };
+        let (mut rows, mut line, mut start) = (0usize, first_line, 0usize);
+        while start < bytes.len() {
+            let end = memchr::memchr(b'\n', &bytes[start..]).map_or(bytes.len(), |p| start + p);
+            let raw = &bytes[start..end];
+            start = end + 1;
+            let row = raw.strip_suffix(b"\r").unwrap_or(raw);
+            if memchr::memchr(b'\r', row).is_some() {
+                return None;
+            }
+            if row.is_empty() {
+                line += 1;
+                continue;
+            }
+            if line != lines.line(rows) {
+                lines.jumps.push((rows, line));
+            }
+            let mut n = 0;
+            let mut from = 0;
+            for cut in memchr::memchr_iter(self.delim, row).chain([row.len()]) {
+                match slot.get(n) {
+                    Some(&k) if k != usize::MAX => b.push_text(k, &row[from..cut]).ok()?,
+                    Some(_) => {}
+                    None => return None,
+                }
+                n += 1;
+                from = cut + 1;
+            }
+            if n != self.ncols {
+                return None;
+            }
+            rows += 1;
+            line += 1;
+        }
+        Some(Part {
+            rows,
+            builder: b,
+            lines,
+        })
+    }
+
+    /// Any chunk, through the csv reader (quotes, odd line ends, and the
+    /// wording of every error).
+    fn csv_chunk(&self, bytes: &[u8], first_line: usize) -> Result<Part> {
         let mut rdr = reader(self.delim, bytes);
         let mut b = Builder::new(self.wanted, self.spec.decimal, &self.spec.missing);
         let mut rec = csv::ByteRecord::new();
@@ -313,6 +563,21 @@ fn join(
     let mut lines = first.lines;
     let mut rows = first.rows;
     let mut cols = first.builder.finish(wanted, index);
+    // Text → code of every text column so far, built once and kept up to
+    // date (a column may have a million distinct labels).
+    let mut known: HashMap<String, HashMap<String, u32>> = cols
+        .iter()
+        .filter_map(|(name, c)| {
+            let t = c.text.as_ref()?;
+            let map = t
+                .levels
+                .iter()
+                .enumerate()
+                .map(|(i, l)| (l.clone(), i as u32))
+                .collect();
+            Some((name.clone(), map))
+        })
+        .collect();
     for p in it {
         let line0 = p.lines.line(0);
         if lines.line(rows) != line0 {
@@ -334,12 +599,7 @@ fn join(
                 a.extend_from_slice(&b);
             }
             if let (Some(a), Some(b)) = (&mut into.text, c.text) {
-                let mut known: HashMap<String, u32> = a
-                    .levels
-                    .iter()
-                    .enumerate()
-                    .map(|(i, l)| (l.clone(), i as u32))
-                    .collect();
+                let known = known.entry(name).or_default();
                 let map: Vec<u32> = b
                     .levels
                     .iter()
@@ -389,6 +649,31 @@ mod tests {
         ]
     }
 
+    /// One block, one chunk: the plainest way through.
+    fn whole() -> Limits {
+        Limits {
+            block: usize::MAX / 4,
+            threads: 1,
+            min_chunk: MIN_CHUNK,
+            max_rows: MAX_ROWS,
+        }
+    }
+
+    /// Small blocks, each split into up to 7 chunks.
+    fn small() -> Limits {
+        Limits {
+            block: 1000,
+            threads: 7,
+            min_chunk: 64,
+            max_rows: MAX_ROWS,
+        }
+    }
+
+    fn read_with(bytes: &[u8], limits: Limits) -> Result<(Table, String)> {
+        let io = |e: std::io::Error| Failure::internal(e.to_string());
+        read_stream(bytes, "d.csv", &spec(), &wanted(), limits, io)
+    }
+
     /// 3000 rows with CRLF ends, blank lines and levels first seen late.
     fn file(bad_row: Option<usize>) -> Vec<u8> {
         let mut s = String::from("id,g,y\r\n");
@@ -412,8 +697,8 @@ mod tests {
     #[test]
     fn chunks_give_the_same_table_as_one_pass() {
         let bytes = file(None);
-        let one = read_in_chunks(&bytes, "d.csv", &spec(), &wanted(), 1, MIN_CHUNK).unwrap();
-        let many = read_in_chunks(&bytes, "d.csv", &spec(), &wanted(), 7, 256).unwrap();
+        let one = read_with(&bytes, whole()).unwrap().0;
+        let many = read_with(&bytes, small()).unwrap().0;
         assert_eq!(one.rows, 3000);
         assert_eq!(many.rows, 3000);
         // NaN marks missing cells, so compare the numbers bit for bit.
@@ -442,9 +727,99 @@ mod tests {
     fn chunks_report_the_same_line() {
         // Row 2500 sits after 26 blank lines (rows 0, 97, …, 2425), so on line 2 + 2500 + 26.
         let bytes = file(Some(2500));
-        let one = read_in_chunks(&bytes, "d.csv", &spec(), &wanted(), 1, MIN_CHUNK).unwrap_err();
-        let many = read_in_chunks(&bytes, "d.csv", &spec(), &wanted(), 7, 256).unwrap_err();
+        let one = read_with(&bytes, whole()).unwrap_err();
+        let many = read_with(&bytes, small()).unwrap_err();
         assert_eq!(one, many);
         assert_eq!(one.location.unwrap().line, Some(2 + 2500 + 26));
+    }
+
+    #[test]
+    fn blocks_hash_the_whole_file() {
+        let bytes = file(None);
+        let (_, sha) = read_with(&bytes, small()).unwrap();
+        assert_eq!(sha, crate::plan::canonical::sha256_hex(&bytes));
+    }
+
+    #[test]
+    fn quoted_line_breaks_survive_block_cuts() {
+        // Every fourth label is quoted and holds a line break and a doubled
+        // quote, so many 97-byte block ends fall inside quotes.
+        let mut s = String::from("id,g,y\n");
+        for i in 0..400 {
+            let g = if i % 4 == 0 {
+                "\"a\nb \"\"q\"\"\"".to_string()
+            } else {
+                "c".to_string()
+            };
+            s.push_str(&format!("{i},{g},{i}.25\n"));
+        }
+        let bytes = s.into_bytes();
+        let tiny = Limits {
+            block: 97,
+            ..small()
+        };
+        let (one, _) = read_with(&bytes, whole()).unwrap();
+        let (many, _) = read_with(&bytes, tiny).unwrap();
+        assert_eq!(one.rows, 400);
+        assert_eq!(one.columns["g"], many.columns["g"]);
+        assert_eq!(one.lines, many.lines);
+        assert_eq!(
+            one.columns["g"].text.as_ref().unwrap().levels,
+            ["a\nb \"q\"", "c"]
+        );
+        // Row 4 follows four one-line rows and one two-line row: line 2 + 4 + 1.
+        assert_eq!(many.lines.line(4), 7);
+    }
+
+    #[test]
+    fn too_many_rows_are_refused_while_reading() {
+        let bytes = file(None);
+        let capped = Limits {
+            max_rows: 2000,
+            ..small()
+        };
+        let err = read_with(&bytes, capped).unwrap_err();
+        assert!(err.what.contains("more than 2000 data rows"), "{err:?}");
+        assert!(err.help.unwrap().contains("split the data"));
+    }
+
+    #[test]
+    fn plain_path_matches_the_csv_reader() {
+        // CRLF ends, blank lines, missing texts, a trailing row without a
+        // line end; then rows the plain path must hand back (a lone CR, a
+        // ragged row, an unreadable number).
+        let mut bytes = file(None);
+        bytes.extend_from_slice(b"3000,a,1.5");
+        let (sp, w) = (spec(), wanted());
+        let head = Header::read(&bytes, "d.csv", &sp, &w).unwrap();
+        let job = Job {
+            delim: b',',
+            ncols: head.ncols,
+            index: &head.index,
+            wanted: &w,
+            spec: &sp,
+            source: "d.csv",
+        };
+        let body = &bytes[head.body_start..];
+        let plain = job.plain_chunk(body, head.first_line).unwrap();
+        let csv = job.csv_chunk(body, head.first_line).unwrap();
+        assert_eq!(plain.rows, 3001);
+        assert_eq!(plain.rows, csv.rows);
+        assert_eq!(plain.lines, csv.lines);
+        let cols = |p: Part| p.builder.finish(&w, &head.index);
+        let (a, b) = (cols(plain), cols(csv));
+        assert_eq!(a["g"], b["g"]);
+        let bits = |c: &super::super::Column| -> Vec<u64> {
+            c.numbers
+                .as_ref()
+                .unwrap()
+                .iter()
+                .map(|v| v.to_bits())
+                .collect()
+        };
+        assert_eq!(bits(&a["y"]), bits(&b["y"]));
+        for odd in [&b"1,a,2\r3,b,4\n"[..], b"1,a\n", b"1,a,2,\n", b"1,a,x\n"] {
+            assert!(job.plain_chunk(odd, 2).is_none(), "{odd:?}");
+        }
     }
 }

@@ -76,7 +76,10 @@ pub fn select(ds: &Dataset, plan: &Plan, h: &Hypothesis) -> Result<Selected> {
         }
     }
     let kept = |i: usize| slots[i] <= SECOND && ds.excluded_by.get(i).copied().unwrap_or(0) == 0;
-    let (mut first, mut second) = (Vec::new(), Vec::new());
+    let (mut first, mut second) = (
+        Vec::with_capacity(flow.read[0]),
+        Vec::with_capacity(flow.read[1]),
+    );
     match &h.comparison {
         Comparison::Groups { .. } | Comparison::Reference { .. } => {
             let y = ds.numbers(outcome(h)?)?;
