@@ -9,6 +9,13 @@ use std::collections::HashSet;
 use std::path::Path;
 use toml::Spanned;
 
+/// The most hypotheses one analysis file may declare. Each becomes a
+/// report section with figures (about 150 KB of output and a few MB of
+/// memory at most), so this bounds a run's memory and output; a
+/// confirmatory plan rarely needs more, and a larger set splits naturally
+/// into several files run as one folder.
+pub const MAX_HYPOTHESES: usize = 200;
+
 /// Reads, parses and validates an analysis file.
 pub fn load(path: &Path) -> Result<AnalysisFile> {
     let bytes = std::fs::read(path).map_err(|e| {
@@ -209,6 +216,15 @@ impl Checker<'_> {
             return Err(self
                 .top("the analysis file declares no hypothesis")
                 .help("add at least one [[hypothesis]] block"));
+        }
+        if let Some(extra) = raw.hypothesis.get(MAX_HYPOTHESES) {
+            let (l, c) = line_col(self.text, extra.span().start);
+            return Err(Failure::input(format!(
+                "the analysis file declares {} hypotheses; one file holds at most {MAX_HYPOTHESES}",
+                raw.hypothesis.len()
+            ))
+            .at(self.path, l, Some(c))
+            .help("split the hypotheses over several analysis files (each with its own lock) and run them together with `attest run <folder>`"));
         }
         let mut ids = HashSet::new();
         let mut hypotheses = Vec::new();
