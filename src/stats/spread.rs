@@ -125,7 +125,10 @@ mod tests {
         let a = [1.0, 2.0, 4.0, 7.0];
         let b = [3.0, 3.5, 9.0];
         let small = |v: &[f64]| v.iter().map(|t| t * 1e-200).collect::<Vec<_>>();
-        let (f1, f2) = (levene(&a, &b).unwrap().f, levene(&small(&a), &small(&b)).unwrap().f);
+        let (f1, f2) = (
+            levene(&a, &b).unwrap().f,
+            levene(&small(&a), &small(&b)).unwrap().f,
+        );
         assert!((f1 - f2).abs() <= 1e-12 * f1, "{f1} vs {f2}");
     }
 
