@@ -122,8 +122,14 @@ fn weighted_median(items: &mut [(f64, usize)]) -> f64 {
     }
 }
 
-/// Samples drawn per bracketing round (see [`select`]).
-const SAMPLE: usize = 1 << 15;
+/// Largest and smallest sample of a bracketing round (see [`select`]). A
+/// round samples one entry per 8 rows and columns (so the sample costs
+/// less memory than the data), at most one active entry in 16, within
+/// these bounds.
+const SAMPLE_MAX: usize = 1 << 16;
+const SAMPLE_MIN: usize = 1 << 12;
+/// Active entries above which a round samples (stride at least 16).
+const SAMPLED_ABOVE: usize = 16 * SAMPLE_MIN;
 
 /// SplitMix64 (Steele, Lea & Flood 2014, "Fast splittable pseudorandom
 /// number generators", OOPSLA '14): a tiny generator with a fixed seed, so
@@ -149,8 +155,9 @@ impl SplitMix64 {
 
 /// Two values expected to bracket the target: order statistics, a few
 /// binomial standard deviations either side of the target's share, of a
-/// systematic sample of about `SAMPLE` active entries (every `stride`-th in
-/// row-major order from a random start; one sweep, no extra memory).
+/// systematic sample of the active entries (every `stride`-th in row-major
+/// order from a random start; one sweep). The larger the sample, the
+/// tighter the bracket: a round cuts the candidates by about √s/5.
 fn bracket(
     m: &impl SortedMatrix,
     lo: &[u32],
@@ -159,8 +166,11 @@ fn bracket(
     active: usize,
     rng: &mut SplitMix64,
 ) -> (f64, f64) {
-    let stride = active / SAMPLE;
-    let mut sample = Vec::with_capacity(SAMPLE + 1);
+    let size = ((m.rows() + m.cols()) / 8)
+        .min(active / 16)
+        .clamp(SAMPLE_MIN, SAMPLE_MAX);
+    let stride = active / size;
+    let mut sample = Vec::with_capacity(size + 1);
     let mut next = rng.below(stride);
     let mut seen = 0;
     for i in 0..lo.len() {
@@ -171,7 +181,6 @@ fn bracket(
         }
         seen += width;
     }
-    sample.sort_unstable_by(f64::total_cmp);
     let s = sample.len() as f64;
     let centre = rank as f64 / active as f64 * s;
     // The count of sampled entries below the target is about binomial with
@@ -179,7 +188,15 @@ fn bracket(
     let delta = 2.5 * s.sqrt();
     let a = (centre - delta).floor().max(0.0) as usize;
     let b = ((centre + delta).ceil() as usize).min(sample.len() - 1);
-    (sample[a], sample[b])
+    // Two selections instead of a sort: the a-th, then the b-th above it.
+    let (_, low, above) = sample.select_nth_unstable_by(a, f64::total_cmp);
+    let low = *low;
+    let high = if b > a {
+        *above.select_nth_unstable_by(b - a - 1, f64::total_cmp).1
+    } else {
+        low
+    };
+    (low, high)
 }
 
 /// For each row, how many of its entries (over all columns) are below the
@@ -213,12 +230,42 @@ fn count_clamped<const STRICT: bool>(
     sum
 }
 
+/// [`count_clamped`] for two pivots in one sweep: per row, the entries
+/// below `low` into `below` and those at most `high` into `upto`, clamped
+/// to the active range; returns both sums. One pass over the rows instead
+/// of two, which is most of a bracketing round's cost.
+fn count_band(
+    m: &impl SortedMatrix,
+    (low, high): (f64, f64),
+    lo: &[u32],
+    hi: &[u32],
+    below: &mut [u32],
+    upto: &mut [u32],
+) -> (usize, usize) {
+    let (mut ca, mut cb) = (m.cols(), m.cols());
+    let (mut sa, mut sb) = (0, 0);
+    for i in 0..m.rows() {
+        while ca > 0 && m.value(i, ca - 1) >= low {
+            ca -= 1;
+        }
+        while cb > 0 && m.value(i, cb - 1) > high {
+            cb -= 1;
+        }
+        // Both ≤ cols, which `select` checked fits in u32.
+        below[i] = (ca as u32).clamp(lo[i], hi[i]);
+        upto[i] = (cb as u32).clamp(lo[i], hi[i]);
+        sa += (below[i] - lo[i]) as usize;
+        sb += (upto[i] - lo[i]) as usize;
+    }
+    (sa, sb)
+}
+
 /// The k-th smallest (0-based) entry of a sorted matrix's defined part.
 ///
 /// While many candidates remain, each round first tries a sampled bracket
 /// in the manner of Floyd & Rivest (1975), "Expected time bounds for
 /// selection", Commun. ACM 18(3), 165–172: two order statistics of a random
-/// sample of the active entries, counted with two sweeps, usually cut the
+/// sample of the active entries, counted in one sweep, usually cut the
 /// candidates by a factor of about 25. When a bracket fails to halve them
 /// the next round takes Johnson & Mizoguchi's weighted-median pivot, which
 /// always removes a quarter, so the worst case stays
@@ -241,7 +288,9 @@ fn select(m: &impl SortedMatrix, k: usize) -> Option<f64> {
     let mut rng = SplitMix64(0x5EED_0FA7_7E57);
     let mut sampled_ok = true;
     // Gather once few enough remain that one selection beats two sweeps.
-    let gather = (rows + m.cols()).min(2 * SAMPLE);
+    // Gathering k values costs about what one sweep costs when k is the
+    // size of the matrix's rows and columns together.
+    let gather = (rows + m.cols()).min(1 << 22);
     let mut active = total;
     loop {
         if active <= gather {
@@ -253,28 +302,25 @@ fn select(m: &impl SortedMatrix, k: usize) -> Option<f64> {
             return Some(*v);
         }
         let before = active;
-        if sampled_ok && active > 2 * SAMPLE {
+        if sampled_ok && active > SAMPLED_ABOVE {
             let (low, high) = bracket(m, &lo, &hi, rank, active, &mut rng);
-            let below = count_clamped::<true>(m, low, &lo, &hi, &mut a);
+            let (below, upto) = count_band(m, (low, high), &lo, &hi, &mut a, &mut b);
             if rank < below {
-                hi.copy_from_slice(&a);
+                std::mem::swap(&mut hi, &mut a);
                 active = below;
-            } else {
-                let upto = count_clamped::<false>(m, high, &lo, &hi, &mut b);
-                if rank < upto {
-                    if low == high {
-                        // Every candidate left equals the bracket (ties).
-                        return Some(low);
-                    }
-                    rank -= below;
-                    lo.copy_from_slice(&a);
-                    hi.copy_from_slice(&b);
-                    active = upto - below;
-                } else {
-                    rank -= upto;
-                    lo.copy_from_slice(&b);
-                    active -= upto;
+            } else if rank < upto {
+                if low == high {
+                    // Every candidate left equals the bracket (ties).
+                    return Some(low);
                 }
+                rank -= below;
+                std::mem::swap(&mut lo, &mut a);
+                std::mem::swap(&mut hi, &mut b);
+                active = upto - below;
+            } else {
+                rank -= upto;
+                std::mem::swap(&mut lo, &mut b);
+                active -= upto;
             }
             sampled_ok = active <= before / 2;
             continue;
@@ -446,14 +492,14 @@ mod tests {
 
     #[test]
     fn sampled_brackets_match_sorting() {
-        // Over 2 · SAMPLE entries, so the sampled rounds run; heavy ties
+        // Several times SAMPLED_ABOVE, so sampled rounds run; heavy ties
         // (values on a 0.25 grid) and a skewed second sample.
         let x: Vec<f64> = (0..700).map(|i| ((i * 7919) % 613) as f64 * 0.25).collect();
         let y: Vec<f64> = (0..600)
             .map(|i| (((i * 104_729) % 401) as f64).powi(2) / 640.0)
             .collect();
         let all = brute_diffs(&x, &y);
-        assert!(all.len() > 2 * SAMPLE);
+        assert!(all.len() > 4 * SAMPLED_ABOVE);
         for k in [
             0,
             5,
@@ -475,7 +521,7 @@ mod tests {
             }
         }
         w.sort_unstable_by(f64::total_cmp);
-        assert!(w.len() > 2 * SAMPLE);
+        assert!(w.len() > 4 * SAMPLED_ABOVE);
         for k in [0, 99, w.len() / 3, w.len() / 2, w.len() - 1] {
             assert_eq!(kth_walsh_average(&d, k), Some(w[k]), "k = {k}");
         }

@@ -59,25 +59,28 @@ fn deviation_anova(
         }
         ensure_finite(g)?;
     }
-    let mut zx = abs_dev(x, centre(x));
-    let mut zy = abs_dev(y, centre(y));
+    // The deviations |v − centre| are recomputed in each pass rather than
+    // stored: two copies of a large sample would cost more than the passes.
+    let (cx, cy) = (centre(x), centre(y));
     // F is scale-free, so the deviations are divided by their largest
     // before squaring: squares of values beyond about 1e154 would
     // overflow. A deviation that itself overflows cannot be rescued.
-    let scale = zx.iter().chain(&zy).fold(0.0_f64, |m, v| m.max(*v));
+    let largest = |g: &[f64], c: f64| g.iter().fold(0.0_f64, |m, v| m.max((v - c).abs()));
+    let scale = largest(x, cx).max(largest(y, cy));
     if !scale.is_finite() {
         return Err(StatsError::Overflow);
     }
     if scale == 0.0 {
         return Err(StatsError::ZeroVariance);
     }
-    zx.iter_mut().chain(zy.iter_mut()).for_each(|v| *v /= scale);
-    let (mx, my) = (mean(&zx), mean(&zy));
-    let (n1, n2) = (zx.len() as f64, zy.len() as f64);
+    let zx = Deviations { g: x, c: cx, scale };
+    let zy = Deviations { g: y, c: cy, scale };
+    let (mx, my) = (zx.mean(), zy.mean());
+    let (n1, n2) = (x.len() as f64, y.len() as f64);
     let n = n1 + n2;
     let grand = (n1 * mx + n2 * my) / n;
     let between = n1 * (mx - grand).powi(2) + n2 * (my - grand).powi(2);
-    let within = sum_sq(&zx, mx) + sum_sq(&zy, my);
+    let within = zx.sum_sq(mx) + zy.sum_sq(my);
     if within.is_nan() || within <= 0.0 {
         return Err(StatsError::ZeroVariance);
     }
@@ -96,12 +99,30 @@ fn deviation_anova(
     })
 }
 
-fn abs_dev(x: &[f64], c: f64) -> Vec<f64> {
-    x.iter().map(|v| (v - c).abs()).collect()
+/// The scaled absolute deviations `|v − c| / scale` of a group, computed
+/// on the fly.
+struct Deviations<'a> {
+    g: &'a [f64],
+    c: f64,
+    scale: f64,
 }
 
-fn sum_sq(z: &[f64], m: f64) -> f64 {
-    z.iter().map(|v| (v - m).powi(2)).sum()
+impl Deviations<'_> {
+    fn iter(&self) -> impl Iterator<Item = f64> + '_ {
+        self.g.iter().map(|v| (v - self.c).abs() / self.scale)
+    }
+
+    /// Corrected two-pass mean, as [`mean`] computes it on a stored copy.
+    fn mean(&self) -> f64 {
+        let n = self.g.len() as f64;
+        let m0 = self.iter().sum::<f64>() / n;
+        let r = self.iter().map(|v| v - m0).sum::<f64>() / n;
+        m0 + r
+    }
+
+    fn sum_sq(&self, m: f64) -> f64 {
+        self.iter().map(|v| (v - m).powi(2)).sum()
+    }
 }
 
 #[cfg(test)]
