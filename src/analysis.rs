@@ -11,6 +11,7 @@ use crate::error::{Failure, Result};
 use crate::plan::{Comparison, Design, Hypothesis, Method, Plan};
 use crate::results::*;
 use crate::stats::{self, describe, Alternative, StatsError};
+use rayon::prelude::*;
 
 /// Figures draw at most this many points per set; larger sets are drawn
 /// from evenly spaced order statistics (so the quantiles stay exact).
@@ -59,15 +60,7 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
     };
     let mut diffs = diffs;
     sort_values(&mut diffs);
-    let groups = summaries(h, &labels, &first, &second, &diffs, level)
-        .map_err(|e| fail("cannot describe the data", e))?;
-    let checks = checks(plan, h, &labels, &first, &second, &diffs);
-    let method = choose(h.method, h.design, &checks);
-    let mut checks = checks;
-    if h.method == Method::Checked {
-        checks.branch = Some(branch(h.design, &checks));
-    }
-    let d_once = std::cell::OnceCell::new();
+    let d_once = std::sync::OnceLock::new();
     let run = |m: Method| {
         let data = Values {
             first: &first,
@@ -77,17 +70,45 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
         };
         run_method(m, h.alternative, level, &data, &d_once)
     };
-    let test =
-        run(method).map_err(|e| fail(&format!("{} cannot be computed", method.as_str()), e))?;
-    let robustness = if h.robustness {
-        Method::ALL
-            .iter()
-            .filter(|m| **m != method && **m != Method::Checked && m.fits(h.design))
-            .filter_map(|m| run(*m).ok())
-            .collect()
-    } else {
-        Vec::new()
-    };
+    // With robustness checks on, every method that fits the design is
+    // reported, so all of them run at once, beside the descriptives and the
+    // assumption checks (on large samples each is worth a core).
+    let fitting: Vec<Method> = Method::ALL
+        .iter()
+        .copied()
+        .filter(|m| *m != Method::Checked && m.fits(h.design))
+        .collect();
+    let ((groups, checks), ran) = rayon::join(
+        || {
+            (
+                summaries(h, &labels, &first, &second, &diffs, level),
+                checks(plan, h, &labels, &first, &second, &diffs),
+            )
+        },
+        || {
+            if h.robustness {
+                fitting.par_iter().map(|&m| (m, run(m))).collect()
+            } else {
+                Vec::new()
+            }
+        },
+    );
+    let groups = groups.map_err(|e| fail("cannot describe the data", e))?;
+    let method = choose(h.method, h.design, &checks);
+    let mut checks = checks;
+    if h.method == Method::Checked {
+        checks.branch = Some(branch(h.design, &checks));
+    }
+    let test = match ran.iter().find(|(m, _)| *m == method) {
+        Some((_, r)) => r.clone(),
+        None => run(method),
+    }
+    .map_err(|e| fail(&format!("{} cannot be computed", method.as_str()), e))?;
+    let robustness: Vec<TestResult> = ran
+        .into_iter()
+        .filter(|(m, _)| *m != method)
+        .filter_map(|(_, r)| r.ok())
+        .collect();
     let equivalence = match h.equivalence {
         None => None,
         Some([low, high]) => Some(
@@ -294,20 +315,27 @@ fn checks(
 ) -> Checks {
     let a = plan.check_alpha;
     let (normality, spread) = match h.design {
-        Design::Independent => (
-            vec![
-                normality(&labels[0], first, a),
-                normality(&labels[1], second, a),
-            ],
-            vec![
-                spread(
-                    "brown-forsythe",
-                    stats::spread::brown_forsythe(first, second),
-                    a,
-                ),
-                spread("levene", stats::spread::levene(first, second), a),
-            ],
-        ),
+        Design::Independent => {
+            // Four independent checks; on large groups each is worth a core.
+            let ((n1, n2), (bf, lev)) = rayon::join(
+                || {
+                    rayon::join(
+                        || normality(&labels[0], first, a),
+                        || normality(&labels[1], second, a),
+                    )
+                },
+                || {
+                    rayon::join(
+                        || stats::spread::brown_forsythe(first, second),
+                        || stats::spread::levene(first, second),
+                    )
+                },
+            );
+            (
+                vec![n1, n2],
+                vec![spread("brown-forsythe", bf, a), spread("levene", lev, a)],
+            )
+        }
         Design::Paired | Design::OneSample => {
             let label = if h.design == Design::Paired {
                 "differences"
@@ -383,7 +411,7 @@ fn run_method(
     alt: Alternative,
     level: f64,
     v: &Values,
-    d_once: &std::cell::OnceCell<std::result::Result<stats::effect::Effect, StatsError>>,
+    d_once: &std::sync::OnceLock<std::result::Result<stats::effect::Effect, StatsError>>,
 ) -> std::result::Result<TestResult, StatsError> {
     let Values {
         first,
