@@ -109,6 +109,9 @@ pub fn trim(s: &[u8]) -> &[u8] {
 pub struct Builder {
     decimal: u8,
     missing: Vec<Vec<u8>>,
+    /// Whether a missing text starts with a digit (such as "999"), which
+    /// turns off the plain-number shortcut.
+    missing_numeric: bool,
     cols: Vec<ColumnBuild>,
 }
 
@@ -122,12 +125,16 @@ struct ColumnBuild {
 impl Builder {
     /// A builder for the `wanted` columns.
     pub fn new(wanted: &[Use], decimal: char, missing: &[String]) -> Self {
+        let missing: Vec<Vec<u8>> = missing
+            .iter()
+            .map(|m| m.trim().as_bytes().to_vec())
+            .collect();
         Builder {
             decimal: decimal as u8,
-            missing: missing
+            missing_numeric: missing
                 .iter()
-                .map(|m| m.trim().as_bytes().to_vec())
-                .collect(),
+                .any(|m| m.first().is_some_and(u8::is_ascii_digit)),
+            missing,
             cols: wanted
                 .iter()
                 .map(|u| ColumnBuild {
@@ -146,6 +153,41 @@ impl Builder {
 
     /// Adds a cell given as text to column `k`.
     pub fn push_text(&mut self, k: usize, raw: &[u8]) -> Result<(), Problem> {
+        // Shortcuts for the common cells, each giving exactly what the full
+        // path below gives: a label equal to the previous row's (levels are
+        // stored trimmed, so an exact match needs no trimming, and the code
+        // already says whether it is missing); and a plain number whose
+        // first byte is a digit and last byte a digit, which no missing
+        // text can be unless one of them starts with a digit.
+        match &mut self.cols[k] {
+            ColumnBuild {
+                numbers: None,
+                text: Some(t),
+                ..
+            } => {
+                if let Some(&last) = t.codes.last() {
+                    if t.levels[last as usize].as_bytes() == raw {
+                        t.codes.push(last);
+                        return Ok(());
+                    }
+                }
+            }
+            ColumnBuild {
+                numbers: Some(nums),
+                text: None,
+                ..
+            } if !self.missing_numeric => {
+                if let (Some(a), Some(b)) = (raw.first(), raw.last()) {
+                    if a.is_ascii_digit() && b.is_ascii_digit() {
+                        if let Some(v) = fast_path(raw, self.decimal) {
+                            nums.push(v);
+                            return Ok(());
+                        }
+                    }
+                }
+            }
+            _ => {}
+        }
         let s = trim(raw);
         let missing = self.is_missing(s);
         let decimal = self.decimal;
@@ -263,6 +305,33 @@ pub fn failure(p: &Problem, column: &str, text: &[u8], decimal: char) -> Failure
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn shortcuts_give_what_the_full_path_gives() {
+        let used = |numeric, text| Use {
+            name: "c".into(),
+            numeric,
+            text,
+        };
+        // A missing code made of digits must still read as missing.
+        let mut b = Builder::new(&[used(true, false)], '.', &["999".into(), String::new()]);
+        for cell in ["12.5", "999", " 7 ", ""] {
+            b.push_text(0, cell.as_bytes()).unwrap();
+        }
+        let nums = b.cols[0].numbers.clone().unwrap();
+        assert_eq!(nums[0], 12.5);
+        assert!(nums[1].is_nan() && nums[3].is_nan());
+        assert_eq!(nums[2], 7.0);
+        // Labels: a repeat, a padded repeat and a missing text repeated.
+        let mut b = Builder::new(&[used(false, true)], '.', &["NA".into()]);
+        for cell in ["a", "a", " a", "NA", "NA", "b"] {
+            b.push_text(0, cell.as_bytes()).unwrap();
+        }
+        let t = b.cols[0].text.clone().unwrap();
+        assert_eq!(t.codes, [0, 0, 0, 1, 1, 2]);
+        assert_eq!(t.levels, ["a", "NA", "b"]);
+        assert_eq!(t.missing, [false, true, false]);
+    }
 
     #[test]
     fn numbers_parse_exactly() {

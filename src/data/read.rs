@@ -21,11 +21,11 @@ use rayon::prelude::*;
 use std::collections::HashMap;
 
 /// Chunks smaller than this are not worth a thread.
-const MIN_CHUNK: usize = 1 << 22;
+const MIN_CHUNK: usize = 1 << 20;
 
 /// Bytes read from the file at a time (a block grows only when a single
 /// record is longer).
-pub const BLOCK: usize = 1 << 23;
+pub const BLOCK: usize = 1 << 24;
 
 /// The most data rows a file may have. Each used column keeps 8 bytes
 /// (numbers) or 4 bytes (labels) per row, and the statistics work on
@@ -40,9 +40,8 @@ pub fn read_delimited(
     spec: &DataSpec,
     wanted: &[Use],
 ) -> Result<Table> {
-    let mut rest = bytes;
     let io = |e: std::io::Error| Failure::internal(format!("reading from memory failed: {e}"));
-    let (table, _) = read_stream(&mut rest, source, spec, wanted, Limits::default(), io)?;
+    let (table, _) = read_stream(bytes, source, spec, wanted, Limits::default(), io)?;
     Ok(table)
 }
 
@@ -119,12 +118,12 @@ fn record_cut(buf: &[u8], from: usize) -> Option<usize> {
 /// complete records, then each block's complete records, hashing every
 /// byte read. Returns the table and the SHA-256 of all the bytes.
 fn read_stream(
-    mut r: impl std::io::Read,
+    mut r: impl std::io::Read + Send,
     source: &str,
     spec: &DataSpec,
     wanted: &[Use],
     limits: Limits,
-    io: impl Fn(std::io::Error) -> Failure,
+    io: impl Fn(std::io::Error) -> Failure + Sync,
 ) -> Result<(Table, String)> {
     use sha2::{Digest, Sha256};
     let mut hasher = Sha256::new();
@@ -156,11 +155,27 @@ fn read_stream(
     let mut rows = 0usize;
     let mut line = head.first_line;
     let mut start = bom + head.body_start;
+    let mut next: Vec<u8> = Vec::new();
     loop {
+        // Hash and parse this block's complete records while the next block
+        // is read behind the incomplete record they leave over.
         let body = &buf[start..cut];
-        let ((), parsed) = rayon::join(
-            || hasher.update(&buf[..cut]),
-            || job.parse(body, line, limits.threads, limits.min_chunk),
+        next.clear();
+        next.extend_from_slice(&buf[cut..]);
+        let (((), parsed), read) = rayon::join(
+            || {
+                rayon::join(
+                    || hasher.update(&buf[..cut]),
+                    || job.parse(body, line, limits.threads, limits.min_chunk),
+                )
+            },
+            || {
+                if more {
+                    fill(&mut r, &mut next, limits.block, &io)
+                } else {
+                    Ok(false)
+                }
+            },
         );
         let (new_parts, lines_in) = parsed?;
         rows += new_parts.iter().map(|p| p.rows).sum::<usize>();
@@ -172,10 +187,9 @@ fn read_stream(
         if !more {
             break;
         }
-        // Keep the incomplete record, read the next block after it.
-        buf.drain(..cut);
+        more = read?;
+        std::mem::swap(&mut buf, &mut next);
         start = 0;
-        more = fill(&mut r, &mut buf, limits.block, &io)?;
         cut = loop {
             match (more, record_cut(&buf, 0)) {
                 (false, _) => break buf.len(),
@@ -303,13 +317,15 @@ fn csv_failure(e: &csv::Error, source: &str, line: usize) -> Failure {
     Failure::input(format!("the data file cannot be read: {e}")).at(source, line, None)
 }
 
-/// Splits the body at line ends into about one chunk per thread, or keeps
+/// Splits the body at line ends into about two chunks per thread, or keeps
 /// it whole when it is small or contains quotes.
 fn split(body: &[u8], threads: usize, min_chunk: usize) -> Vec<(usize, usize)> {
     if body.len() < 2 * min_chunk || threads <= 1 || body.contains(&b'"') {
         return vec![(0, body.len())];
     }
-    let n = threads.min(body.len() / min_chunk.max(1)).max(1);
+    // Two chunks per thread, so work stealing evens out the hashing and
+    // reading that run beside the parse.
+    let n = (2 * threads).min(body.len() / min_chunk.max(1)).max(1);
     let mut out = Vec::with_capacity(n);
     let mut a = 0;
     for k in 1..n {
@@ -421,38 +437,50 @@ impl Job<'_> {
             first: first_line,
             jumps: Vec::new(),
         };
-        let (mut rows, mut line, mut start) = (0usize, first_line, 0usize);
-        while start < bytes.len() {
-            let end = memchr::memchr(b'\n', &bytes[start..]).map_or(bytes.len(), |p| start + p);
+        let (mut rows, mut line, mut expect) = (0usize, first_line, first_line);
+        // A carriage return anywhere but before a line feed is for the csv
+        // reader; knowing there is none spares a check per row.
+        let has_cr = memchr::memchr(b'\r', bytes).is_some();
+        let mut start = 0;
+        let ends = memchr::memchr_iter(b'\n', bytes).chain([bytes.len()]);
+        for end in ends {
+            if start >= bytes.len() {
+                break;
+            }
             let raw = &bytes[start..end];
             start = end + 1;
-            let row = raw.strip_suffix(b"\r").unwrap_or(raw);
-            if memchr::memchr(b'\r', row).is_some() {
-                return None;
-            }
+            let row = if has_cr {
+                let row = raw.strip_suffix(b"\r").unwrap_or(raw);
+                if row.contains(&b'\r') {
+                    return None;
+                }
+                row
+            } else {
+                raw
+            };
             if row.is_empty() {
-                line += 1;
+                line += 1; // a blank line
                 continue;
             }
-            if line != lines.line(rows) {
+            if line != expect {
                 lines.jumps.push((rows, line));
+                expect = line;
             }
             let mut n = 0;
-            let mut from = 0;
-            for cut in memchr::memchr_iter(self.delim, row).chain([row.len()]) {
+            for cell in row.split(|&c| c == self.delim) {
                 match slot.get(n) {
-                    Some(&k) if k != usize::MAX => b.push_text(k, &row[from..cut]).ok()?,
+                    Some(&k) if k != usize::MAX => b.push_text(k, cell).ok()?,
                     Some(_) => {}
                     None => return None,
                 }
                 n += 1;
-                from = cut + 1;
             }
             if n != self.ncols {
                 return None;
             }
             rows += 1;
             line += 1;
+            expect += 1;
         }
         Some(Part {
             rows,
@@ -560,9 +588,20 @@ fn join(
     let Some(first) = it.next() else {
         return (HashMap::new(), LineMap::default());
     };
+    let rest: Vec<Part> = it.collect();
+    let total: usize = first.rows + rest.iter().map(|p| p.rows).sum::<usize>();
     let mut lines = first.lines;
     let mut rows = first.rows;
     let mut cols = first.builder.finish(wanted, index);
+    // One allocation per column instead of repeated doubling.
+    for c in cols.values_mut() {
+        if let Some(v) = &mut c.numbers {
+            v.reserve_exact(total - v.len());
+        }
+        if let Some(t) = &mut c.text {
+            t.codes.reserve_exact(total - t.codes.len());
+        }
+    }
     // Text → code of every text column so far, built once and kept up to
     // date (a column may have a million distinct labels).
     let mut known: HashMap<String, HashMap<String, u32>> = cols
@@ -578,7 +617,7 @@ fn join(
             Some((name.clone(), map))
         })
         .collect();
-    for p in it {
+    for p in rest {
         let line0 = p.lines.line(0);
         if lines.line(rows) != line0 {
             lines.jumps.push((rows, line0));

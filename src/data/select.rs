@@ -83,14 +83,19 @@ pub fn select(ds: &Dataset, plan: &Plan, h: &Hypothesis) -> Result<Selected> {
     match &h.comparison {
         Comparison::Groups { .. } | Comparison::Reference { .. } => {
             let y = ds.numbers(outcome(h)?)?;
-            for i in (0..ds.rows).filter(|&i| kept(i)) {
-                let s = slots[i] as usize;
-                if y[i].is_nan() {
-                    flow.missing[s] += 1;
-                } else if s == 0 {
-                    first.push(y[i]);
+            // Zipped slices (no per-row bounds checks): this loop touches
+            // every row of the file.
+            let excluded = ds.excluded_by.iter().copied().chain(std::iter::repeat(0));
+            for ((&slot, &v), ex) in slots.iter().zip(y).zip(excluded) {
+                if slot > SECOND || ex != 0 {
+                    continue;
+                }
+                if v.is_nan() {
+                    flow.missing[usize::from(slot)] += 1;
+                } else if slot == FIRST {
+                    first.push(v);
                 } else {
-                    second.push(y[i]);
+                    second.push(v);
                 }
             }
             if matches!(h.comparison, Comparison::Reference { .. }) {
