@@ -19,9 +19,10 @@ turn and `--runs` times each:
   peer     the peer pipeline on the same file, when python3 can import
            pandas, scipy and matplotlib.
 
-It prints the median wall time, the peak resident memory (from wait4, per
-process), rows per second, attest's time over the bare parse, and the
-peer's time and memory over attest's. Then it times one `attest run` over a
+The three alternate run by run (so a slow spell of a shared machine falls
+on all alike). It prints the median wall time, the peak resident memory
+(from wait4, per process), rows per second, attest's time over the bare
+parse, and the peer's time and memory over attest's. Then it times one `attest run` over a
 folder of 50 small analyses (n = 200 each). Run on demand; never in CI.
 Needs numpy for the data generator.
 """
@@ -74,6 +75,7 @@ def timed(cmd, cwd=None, out=None):
 
 
 def median_of(runs, cmd, cwd=None):
+    """Median wall time and largest peak RSS of `runs` runs."""
     samples = [timed(cmd, cwd) for _ in range(runs)]
     return statistics.median(s[0] for s in samples), max(s[1] for s in samples)
 
@@ -124,14 +126,26 @@ def scale(args, attest, bare, peer_ok):
                 f.write(PLAN.format(rows=rows, data="bench.csv"))
             shutil.rmtree(os.path.join(d, "out"), ignore_errors=True)
             timed([attest, "lock", plan, "--out", os.path.join(d, "out")], cwd=d)
-        run = [attest, "run", plan, "--out", os.path.join(d, "out"), "--quiet"]
-        a_wall, a_rss = median_of(args.runs, run, cwd=d)
-        b_wall, _ = median_of(args.runs, [bare, data, "arm", "score"])
+        cmds = {
+            "attest": ([attest, "run", plan, "--out", os.path.join(d, "out"), "--quiet"], d),
+            "parse": ([bare, data, "arm", "score"], None),
+        }
+        if peer_ok:
+            cmds["peer"] = ([sys.executable, args.peer, data, os.path.join(d, "peer")], None)
+        # Interleaved (attest, parse, peer, attest, …) so that a slow spell of
+        # a shared machine falls on all of them alike.
+        samples = {k: [] for k in cmds}
+        for _ in range(args.runs):
+            for k, (cmd, cwd) in cmds.items():
+                samples[k].append(timed(cmd, cwd))
+        wall = {k: statistics.median(s[0] for s in v) for k, v in samples.items()}
+        rss = {k: max(s[1] for s in v) for k, v in samples.items()}
+        a_wall, a_rss, b_wall = wall["attest"], rss["attest"], wall["parse"]
         html = os.path.getsize(os.path.join(d, "out", "report.html")) / 1024
         line = (f"| {fmt_rows(rows)} | {a_wall:.3f} | {a_rss:.0f} | {rows / a_wall / 1e6:.2f} M"
                 f" | {b_wall:.3f} | {a_wall / b_wall:.2f} | {html:.0f} |")
         if peer_ok:
-            p_wall, p_rss = median_of(args.runs, [sys.executable, args.peer, data, os.path.join(d, "peer")])
+            p_wall, p_rss = wall["peer"], rss["peer"]
             line += f" {p_wall:.3f} | {p_rss:.0f} | {p_wall / a_wall:.1f}x | {p_rss / a_rss:.1f}x |"
         print(line, flush=True)
 
