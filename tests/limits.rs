@@ -37,8 +37,16 @@ fn base_rows(out: &mut String) {
     }
 }
 
-fn results(case: &Case) -> serde_json::Value {
-    serde_json::from_str(&case.read("out/results.json")).unwrap()
+/// Runs the plan unlocked on `data` in a fresh case; returns the case and
+/// its results.json.
+fn run_on(data: &str) -> (Case, serde_json::Value) {
+    let case = Case::new();
+    case.write("p.toml", PLAN);
+    case.write("d.csv", data);
+    case.attest(&["run", "--unlocked", "--quiet", "p.toml", "--out", "out"])
+        .success();
+    let results = serde_json::from_str(&case.read("out/results.json")).unwrap();
+    (case, results)
 }
 
 #[test]
@@ -50,12 +58,7 @@ fn a_one_megabyte_cell_is_read_and_kept_out_of_the_report() {
     base_rows(&mut data);
     writeln!(data, "a,{big},41.5").unwrap();
     writeln!(data, "{big},ok,39.0").unwrap();
-    let case = Case::new();
-    case.write("p.toml", PLAN);
-    case.write("d.csv", &data);
-    case.attest(&["run", "--unlocked", "--quiet", "p.toml", "--out", "out"])
-        .success();
-    let r = results(&case);
+    let (case, r) = run_on(&data);
     let rows = &r["hypotheses"][0]["rows"];
     assert_eq!(rows["other_levels"], 1);
     assert_eq!(rows["analysed"], serde_json::json!([11, 10]));
@@ -72,12 +75,7 @@ fn a_grouping_column_with_a_hundred_thousand_levels_is_counted() {
     for i in 0..100_000 {
         writeln!(data, "site-{i:06},ok,{}", 30 + i % 40).unwrap();
     }
-    let case = Case::new();
-    case.write("p.toml", PLAN);
-    case.write("d.csv", &data);
-    case.attest(&["run", "--unlocked", "--quiet", "p.toml", "--out", "out"])
-        .success();
-    let r = results(&case);
+    let (case, r) = run_on(&data);
     assert_eq!(r["hypotheses"][0]["rows"]["other_levels"], 100_000);
     assert!(!case.read("out/report.md").contains("site-000017"));
 }

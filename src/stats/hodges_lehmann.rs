@@ -457,6 +457,19 @@ mod tests {
         v
     }
 
+    /// Every Walsh average of `d`, sorted: the definition, by brute force.
+    fn brute_walsh(d: &[f64]) -> Vec<f64> {
+        let s = sorted(d);
+        let mut w = Vec::new();
+        for i in 0..s.len() {
+            for j in i..s.len() {
+                w.push(walsh(s[i], s[j]));
+            }
+        }
+        w.sort_unstable_by(f64::total_cmp);
+        w
+    }
+
     #[test]
     fn hand_worked_shift() {
         // Differences of {1, 2, 3} − {0, 1}: 1,0,2,1,3,2 → sorted 0,1,1,2,2,3;
@@ -476,15 +489,7 @@ mod tests {
             assert_eq!(kth_pairwise_difference(&x, &y, k), Some(all[k]), "k = {k}");
         }
         assert_eq!(kth_pairwise_difference(&x, &y, all.len()), None);
-        let mut s = x.clone();
-        s.sort_unstable_by(f64::total_cmp);
-        let mut w = Vec::new();
-        for i in 0..s.len() {
-            for j in i..s.len() {
-                w.push(walsh(s[i], s[j]));
-            }
-        }
-        w.sort_unstable_by(f64::total_cmp);
+        let w = brute_walsh(&x);
         for k in [0, 17, w.len() / 2, w.len() - 1] {
             assert_eq!(kth_walsh_average(&x, k), Some(w[k]), "k = {k}");
         }
@@ -512,15 +517,7 @@ mod tests {
             assert_eq!(kth_pairwise_difference(&x, &y, k), Some(all[k]), "k = {k}");
         }
         let d: Vec<f64> = (0..900).map(|i| ((i * 31) % 257) as f64 - 100.0).collect();
-        let mut s = d.clone();
-        s.sort_unstable_by(f64::total_cmp);
-        let mut w = Vec::new();
-        for i in 0..s.len() {
-            for j in i..s.len() {
-                w.push(walsh(s[i], s[j]));
-            }
-        }
-        w.sort_unstable_by(f64::total_cmp);
+        let w = brute_walsh(&d);
         assert!(w.len() > 4 * SAMPLED_ABOVE);
         for k in [0, 99, w.len() / 3, w.len() / 2, w.len() - 1] {
             assert_eq!(kth_walsh_average(&d, k), Some(w[k]), "k = {k}");
