@@ -206,7 +206,7 @@ fn read_stream(
                 .help("check that the file was saved completely"),
         );
     }
-    let (columns, lines) = join(parts, wanted, &head.index);
+    let (columns, lines) = join(parts);
     Ok((
         Table {
             rows,
@@ -374,10 +374,11 @@ struct Job<'a> {
     source: &'a str,
 }
 
-/// One chunk's rows.
+/// One chunk's rows, its columns finished (their lookup tables dropped
+/// as soon as the chunk is read, not kept until every chunk is).
 struct Part {
     rows: usize,
-    builder: Builder,
+    columns: HashMap<String, super::Column>,
     lines: LineMap,
 }
 
@@ -484,7 +485,7 @@ impl Job<'_> {
         }
         Some(Part {
             rows,
-            builder: b,
+            columns: b.finish(self.wanted, self.index),
             lines,
         })
     }
@@ -548,7 +549,7 @@ impl Job<'_> {
         }
         Ok(Part {
             rows,
-            builder: b,
+            columns: b.finish(self.wanted, self.index),
             lines,
         })
     }
@@ -579,11 +580,7 @@ impl Job<'_> {
 
 /// Joins the chunks in order; text codes of later chunks are renumbered so
 /// levels stay in order of first appearance in the file.
-fn join(
-    parts: Vec<Part>,
-    wanted: &[Use],
-    index: &[usize],
-) -> (HashMap<String, super::Column>, LineMap) {
+fn join(parts: Vec<Part>) -> (HashMap<String, super::Column>, LineMap) {
     let mut it = parts.into_iter();
     let Some(first) = it.next() else {
         return (HashMap::new(), LineMap::default());
@@ -592,7 +589,7 @@ fn join(
     let total: usize = first.rows + rest.iter().map(|p| p.rows).sum::<usize>();
     let mut lines = first.lines;
     let mut rows = first.rows;
-    let mut cols = first.builder.finish(wanted, index);
+    let mut cols = first.columns;
     // One allocation per column instead of repeated doubling.
     for c in cols.values_mut() {
         if let Some(v) = &mut c.numbers {
@@ -630,7 +627,7 @@ fn join(
                 .map(|(r, l)| (r + rows, *l)),
         );
         rows += p.rows;
-        for (name, c) in p.builder.finish(wanted, index) {
+        for (name, c) in p.columns {
             let Some(into) = cols.get_mut(&name) else {
                 continue;
             };
@@ -845,7 +842,7 @@ mod tests {
         assert_eq!(plain.rows, 3001);
         assert_eq!(plain.rows, csv.rows);
         assert_eq!(plain.lines, csv.lines);
-        let cols = |p: Part| p.builder.finish(&w, &head.index);
+        let cols = |p: Part| p.columns;
         let (a, b) = (cols(plain), cols(csv));
         assert_eq!(a["g"], b["g"]);
         let bits = |c: &super::super::Column| -> Vec<u64> {
