@@ -94,24 +94,42 @@ fn fill(
     Ok(got == want)
 }
 
-/// The offset just after the last line feed of `buf[from..]` that lies
-/// outside quotes (an even number of `"` since `buf[from]`, which is at a
-/// record boundary), if there is one.
-fn record_cut(buf: &[u8], from: usize) -> Option<usize> {
-    let part = &buf[from..];
-    if !part.contains(&b'"') {
-        return part.iter().rposition(|&b| b == b'\n').map(|p| from + p + 1);
+/// The offset just after the last line feed of `buf` that lies outside
+/// quotes (an even number of `"` before it; `buf` starts at a record
+/// boundary), if there is one.
+fn record_cut(buf: &[u8]) -> Option<usize> {
+    if !buf.contains(&b'"') {
+        return buf.iter().rposition(|&b| b == b'\n').map(|p| p + 1);
     }
     let mut inside = false;
     let mut cut = None;
-    for (i, &b) in part.iter().enumerate() {
+    for (i, &b) in buf.iter().enumerate() {
         match b {
             b'"' => inside = !inside,
-            b'\n' if !inside => cut = Some(from + i + 1),
+            b'\n' if !inside => cut = Some(i + 1),
             _ => {}
         }
     }
     cut
+}
+
+/// Where the complete records of `buf` end: at the last record boundary,
+/// reading further blocks until there is one (a record longer than a
+/// block), or at the end of the input.
+fn complete_records(
+    r: &mut impl std::io::Read,
+    buf: &mut Vec<u8>,
+    more: &mut bool,
+    block: usize,
+    io: &impl Fn(std::io::Error) -> Failure,
+) -> Result<usize> {
+    loop {
+        match (*more, record_cut(buf)) {
+            (false, _) => return Ok(buf.len()),
+            (true, Some(c)) => return Ok(c),
+            (true, None) => *more = fill(r, buf, block, io)?,
+        }
+    }
 }
 
 /// Reads blocks from `r` (see the module notes): the header from the first
@@ -129,14 +147,8 @@ fn read_stream(
     let mut hasher = Sha256::new();
     let mut buf: Vec<u8> = Vec::new();
     let mut more = fill(&mut r, &mut buf, limits.block, &io)?;
-    // The first cut must hold the header: grow until a record ends.
-    let mut cut = loop {
-        match (more, record_cut(&buf, 0)) {
-            (false, _) => break buf.len(),
-            (true, Some(c)) => break c,
-            (true, None) => more = fill(&mut r, &mut buf, limits.block, &io)?,
-        }
-    };
+    // The first cut must hold the header.
+    let mut cut = complete_records(&mut r, &mut buf, &mut more, limits.block, &io)?;
     let bom = if buf.starts_with(b"\xEF\xBB\xBF") {
         3
     } else {
@@ -190,15 +202,9 @@ fn read_stream(
         more = read?;
         std::mem::swap(&mut buf, &mut next);
         start = 0;
-        cut = loop {
-            match (more, record_cut(&buf, 0)) {
-                (false, _) => break buf.len(),
-                (true, Some(c)) => break c,
-                (true, None) => more = fill(&mut r, &mut buf, limits.block, &io)?,
-            }
-        };
+        cut = complete_records(&mut r, &mut buf, &mut more, limits.block, &io)?;
     }
-    let sha = hex(&hasher.finalize());
+    let sha = crate::plan::canonical::hex(&hasher.finalize());
     if rows == 0 {
         return Err(
             Failure::input("the data file has a header row but no data rows")
@@ -216,10 +222,6 @@ fn read_stream(
         },
         sha,
     ))
-}
-
-fn hex(digest: &[u8]) -> String {
-    digest.iter().map(|b| format!("{b:02x}")).collect()
 }
 
 fn too_many_rows(source: &str, max: usize) -> Failure {

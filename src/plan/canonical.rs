@@ -28,8 +28,12 @@ pub fn plan_hash(plan: &Plan) -> String {
 
 /// Lowercase hex SHA-256 of some bytes.
 pub fn sha256_hex(bytes: &[u8]) -> String {
-    let digest = Sha256::digest(bytes);
-    let mut s = String::with_capacity(64);
+    hex(&Sha256::digest(bytes))
+}
+
+/// Lowercase hexadecimal of a digest (two digits per byte).
+pub fn hex(digest: &[u8]) -> String {
+    let mut s = String::with_capacity(2 * digest.len());
     for b in digest {
         s.push_str(&format!("{b:02x}"));
     }
