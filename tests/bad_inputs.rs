@@ -25,20 +25,7 @@ fn cases() -> Vec<PathBuf> {
 
 /// Every file (not folder) below `dir`, relative, `/`-separated.
 fn files(dir: &Path) -> BTreeSet<String> {
-    fn walk(root: &Path, dir: &Path, out: &mut BTreeSet<String>) {
-        for e in std::fs::read_dir(dir).unwrap() {
-            let p = e.unwrap().path();
-            if p.is_dir() {
-                walk(root, &p, out);
-            } else {
-                let rel = p.strip_prefix(root).unwrap().to_string_lossy();
-                out.insert(rel.replace('\\', "/"));
-            }
-        }
-    }
-    let mut out = BTreeSet::new();
-    walk(dir, dir, &mut out);
-    out
+    common::tree(dir).into_keys().collect()
 }
 
 /// The command line of a case: the `args` file, else `run --unlocked plan.toml`.

@@ -123,20 +123,7 @@ fn plan_text(g: &Generated) -> String {
 
 /// Every file below `dir` with its bytes, by `/`-separated relative path.
 fn snapshot(dir: &Path) -> BTreeMap<String, Vec<u8>> {
-    fn walk(root: &Path, dir: &Path, out: &mut BTreeMap<String, Vec<u8>>) {
-        for e in std::fs::read_dir(dir).unwrap() {
-            let p = e.unwrap().path();
-            if p.is_dir() {
-                walk(root, &p, out);
-            } else {
-                let rel = p.strip_prefix(root).unwrap().to_string_lossy();
-                out.insert(rel.replace('\\', "/"), std::fs::read(&p).unwrap());
-            }
-        }
-    }
-    let mut out = BTreeMap::new();
-    walk(dir, dir, &mut out);
-    out
+    common::tree(dir)
 }
 
 /// Runs `attest run --unlocked plan.toml` in `dir`; returns the exit code
