@@ -163,7 +163,7 @@ pub fn compute(path: &Path, unlocked: bool) -> Result<Results> {
             analysis::analyse(plan, h, sel)
         })
         .collect::<Result<Vec<_>>>()?;
-    analysis::adjust_all(plan, &mut hyps);
+    let correction_applied = analysis::adjust_all(plan, &mut hyps);
     let analysis_file = lock::file_name(path);
     let command = if unlocked {
         format!("attest run --unlocked {analysis_file}")
@@ -186,6 +186,7 @@ pub fn compute(path: &Path, unlocked: bool) -> Result<Results> {
             outside_plan_folder: outside(&dir, &ds.path),
         },
         hypotheses: hyps,
+        correction_applied,
         command,
         analysis_file,
     })
@@ -206,27 +207,10 @@ pub fn render_outputs(
     results: &Results,
     templates: Option<&Path>,
 ) -> Result<Vec<(String, Vec<u8>)>> {
-    // Figure names already carry their folder (`figures/…`), as the
-    // Markdown links them.
-    let rendered = render::render_report(results, templates)?;
-    let mut json = serde_json::to_string_pretty(results)
-        .map_err(|e| Failure::internal(format!("cannot serialise results: {e}")))?;
-    json.push('\n');
-    let mut files: Vec<(String, Vec<u8>)> = rendered
-        .figures
+    Ok(render::render_run(results, templates)?
         .into_iter()
-        .map(|(name, svg)| (name, svg.into_bytes()))
-        .collect();
-    let values = crate::values::from_results(results)?;
-    files.push((
-        "values.tex".into(),
-        values.to_tex(&results.plan.title).into_bytes(),
-    ));
-    files.push(("values.json".into(), values.to_json().into_bytes()));
-    files.push(("report.md".into(), rendered.report_md.into_bytes()));
-    files.push(("report.html".into(), rendered.report_html.into_bytes()));
-    files.push(("results.json".into(), json.into_bytes()));
-    Ok(files)
+        .map(|o| (o.name, o.bytes))
+        .collect())
 }
 
 /// `attest run` for one analysis file.
@@ -312,13 +296,15 @@ pub fn unchanged(path: &Path, opts: &RunOptions) -> Result<(Results, Vec<String>
 }
 
 /// The planned size of each hypothesis that states a sample-size plan.
-pub fn planned_sizes(plan: &crate::plan::Plan) -> Result<Vec<Option<crate::planning::Planned>>> {
+pub fn planned_sizes(
+    plan: &crate::plan::Plan,
+) -> Result<Vec<Option<crate::analysis::planning::Planned>>> {
     plan.hypotheses
         .iter()
         .map(|h| {
             h.planning
                 .as_ref()
-                .map(|p| crate::planning::planned(h, p, plan.alpha))
+                .map(|p| crate::analysis::planning::planned(h, p, plan.alpha))
                 .transpose()
         })
         .collect()

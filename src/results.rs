@@ -9,7 +9,12 @@
 //! renderers' business.
 
 use crate::plan::canonical::FieldChange;
+pub use crate::plan::{Design, Method};
 use crate::plan::{Deviation, Plan};
+use crate::stats::describe::Descriptives;
+use crate::stats::equivalence::Tost;
+pub use crate::stats::multiplicity::Correction;
+pub use crate::stats::Decision;
 use crate::stats::{Alternative, PMethod};
 use serde::{Deserialize, Serialize};
 
@@ -36,6 +41,9 @@ pub struct Results {
     pub data: DataRecord,
     /// Per-hypothesis results, in plan order.
     pub hypotheses: Vec<HypothesisResult>,
+    /// The multiplicity correction that actually applies: the plan's, or
+    /// `none` when the plan has a single hypothesis (nothing to correct for).
+    pub correction_applied: Correction,
     /// The command that reproduces these results, with paths relative to
     /// the analysis file's folder.
     pub command: String,
@@ -132,33 +140,16 @@ pub struct RowFlow {
     pub analysed: [usize; 2],
 }
 
-/// Descriptive statistics of one group (or of the differences).
+/// Descriptive statistics of one group (or of the differences): the
+/// statistics engine's [`Descriptives`] with the set's label and the
+/// interval of its mean.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct GroupSummary {
     /// The group's label (level, column name, or "difference").
     pub label: String,
-    /// Number of values.
-    pub n: usize,
-    /// Mean.
-    pub mean: f64,
-    /// Standard deviation (n − 1); null when n < 2.
-    pub sd: Option<f64>,
-    /// Standard error of the mean; null when n < 2.
-    pub se: Option<f64>,
-    /// Median.
-    pub median: f64,
-    /// First quartile.
-    pub q1: f64,
-    /// Third quartile.
-    pub q3: f64,
-    /// Minimum.
-    pub min: f64,
-    /// Maximum.
-    pub max: f64,
-    /// Skewness G1; null when undefined.
-    pub skewness: Option<f64>,
-    /// Excess kurtosis G2; null when undefined.
-    pub excess_kurtosis: Option<f64>,
+    /// n, mean, SD, SE, median, quartiles, range, skewness, kurtosis.
+    #[serde(flatten)]
+    pub describe: Descriptives,
     /// Two-sided t interval for the mean at the plan's confidence.
     pub mean_ci: Option<[f64; 2]>,
 }
@@ -166,8 +157,8 @@ pub struct GroupSummary {
 /// A point estimate with its confidence interval; an open side is null.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Estimate {
-    /// What is estimated, e.g. "mean difference", "Hodges–Lehmann shift".
-    pub name: String,
+    /// What is estimated.
+    pub name: EstimateKind,
     /// The point estimate.
     pub value: f64,
     /// Lower bound, null for −∞.
@@ -181,9 +172,8 @@ pub struct Estimate {
 /// An effect size with its interval; an open side is null.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct EffectSize {
-    /// Which effect size: "cohen-d", "hedges-g", "d-z", "rank-biserial",
-    /// "probability-of-superiority".
-    pub name: String,
+    /// Which effect size.
+    pub name: EffectKind,
     /// The value.
     pub value: f64,
     /// Lower bound, null for −∞ or not computed.
@@ -195,10 +185,10 @@ pub struct EffectSize {
 /// The result of one test (the preregistered one or a robustness check).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct TestResult {
-    /// Method name as in analysis files (`welch-t`, `mann-whitney`, …).
-    pub method: String,
-    /// Symbol of the statistic: `t`, `U` or `W+`.
-    pub statistic_name: String,
+    /// The method, named as in analysis files (`welch-t`, `mann-whitney`, …).
+    pub method: Method,
+    /// Which statistic: `t`, `U` or `W+`.
+    pub statistic_name: StatisticKind,
     /// The statistic (t; U of the first group; W+ = sum of positive ranks).
     pub statistic: f64,
     /// Degrees of freedom (null for rank tests).
@@ -238,7 +228,7 @@ pub struct NormalityCheck {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct SpreadCheck {
     /// `brown-forsythe` or `levene`.
-    pub method: String,
+    pub method: SpreadMethod,
     /// F statistic.
     pub f: Option<f64>,
     /// Numerator df.
@@ -281,7 +271,8 @@ pub enum Branch {
     CheckNotRun,
 }
 
-/// Two one-sided tests for equivalence.
+/// Two one-sided tests for equivalence (the engine's [`Tost`] with its
+/// bounds, in the shape `results.json` has always had).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct EquivalenceResult {
     /// Lower bound in raw units.
@@ -308,16 +299,6 @@ pub struct EquivalenceResult {
     pub ci_level: f64,
 }
 
-/// The verdict on a hypothesis.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum Decision {
-    /// The null hypothesis is rejected in the preregistered direction.
-    Reject,
-    /// The null hypothesis is retained.
-    Retain,
-}
-
 /// Values kept for drawing figures: all of them up to a cap, otherwise an
 /// evenly spaced sample of the sorted values (so quantiles are kept) plus a
 /// histogram of all values.
@@ -333,6 +314,29 @@ pub struct PlotData {
     pub bin_edges: Vec<f64>,
     /// Histogram counts.
     pub bin_counts: Vec<u64>,
+    /// The normal Q–Q plot of `points`.
+    pub qq: QqData,
+}
+
+/// A normal Q–Q plot: `points` (sorted) against the normal quantiles at
+/// plotting positions (i + ½)/n (Hazen's positions; common practice), with
+/// the reference line through the points' quartiles.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct QqData {
+    /// Normal quantile for each of the set's sorted `points`.
+    pub theoretical: Vec<f64>,
+    /// Reference line `sample = intercept + slope · theoretical`, through
+    /// the type-7 quartiles of the points; null with fewer than two points.
+    pub line: Option<QqLine>,
+}
+
+/// A straight line on a Q–Q plot.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct QqLine {
+    /// Value at theoretical quantile 0.
+    pub intercept: f64,
+    /// Change per unit of theoretical quantile.
+    pub slope: f64,
 }
 
 /// Pairs for the before/after figure of paired designs (capped like points).
@@ -352,11 +356,11 @@ pub struct HypothesisResult {
     /// The claim in the plan's words.
     pub claim: String,
     /// `independent`, `paired` or `one-sample`.
-    pub design: String,
+    pub design: Design,
     /// Method named in the plan.
-    pub method_planned: String,
+    pub method_planned: Method,
     /// Method actually run (differs from the plan only for `checked`).
-    pub method: String,
+    pub method: Method,
     /// Preregistered sidedness.
     pub alternative: Alternative,
     /// Outcome label for figures and tables.
@@ -370,7 +374,7 @@ pub struct HypothesisResult {
     /// Descriptives: the two groups (independent), the two conditions and
     /// the differences (paired), or the sample (one-sample).
     pub groups: Vec<GroupSummary>,
-    /// Symbol of the statistic (same as `test.statistic_name`).
+    /// The preregistered test's statistic (named by `test.statistic_name`).
     pub statistic: f64,
     /// Degrees of freedom of the preregistered test (null for rank tests).
     pub df: Option<f64>,
@@ -410,11 +414,88 @@ pub struct HypothesisResult {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct PlanningOutcome {
     /// What the plan implied.
-    pub planned: crate::planning::Planned,
+    pub planned: crate::analysis::planning::Planned,
     /// Sizes analysed: `[n₁, n₂]` or `[n]`.
     pub achieved: Vec<usize>,
     /// The smallest effect (d or d_z, Student's t) the achieved sample
     /// detects with the planned power; reported instead of "observed
     /// power", which is only a transform of p (Hoenig & Heisey 2001).
     pub sensitivity: Option<f64>,
+}
+
+impl EquivalenceResult {
+    /// The result of [`Tost`] at level α (its interval is the 1 − 2α one).
+    pub fn from_tost(t: &Tost, alpha: f64) -> Self {
+        EquivalenceResult {
+            low: t.low,
+            high: t.high,
+            t_lower: t.t_lower,
+            t_upper: t.t_upper,
+            df: t.df,
+            p_lower: t.p_lower,
+            p_upper: t.p_upper,
+            p: t.p,
+            ci_low: t.interval.low.unwrap_or(f64::NEG_INFINITY),
+            ci_high: t.interval.high.unwrap_or(f64::INFINITY),
+            ci_level: 1.0 - 2.0 * alpha,
+        }
+    }
+}
+
+/// What an estimate of the difference is.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum EstimateKind {
+    /// Difference of means (t-tests).
+    #[serde(rename = "mean difference")]
+    MeanDifference,
+    /// The Hodges–Lehmann shift between two groups (Mann–Whitney).
+    #[serde(rename = "Hodges–Lehmann shift")]
+    HodgesLehmannShift,
+    /// The Hodges–Lehmann pseudo-median (Wilcoxon signed-rank).
+    #[serde(rename = "Hodges–Lehmann estimate")]
+    HodgesLehmannEstimate,
+}
+
+/// Which effect size.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum EffectKind {
+    /// Cohen's d with the pooled SD.
+    #[serde(rename = "cohen-d")]
+    CohenD,
+    /// Hedges' g, d corrected for small-sample bias.
+    #[serde(rename = "hedges-g")]
+    HedgesG,
+    /// d_z: mean difference over the SD of the differences.
+    #[serde(rename = "d-z")]
+    DZ,
+    /// The rank-biserial correlation.
+    #[serde(rename = "rank-biserial")]
+    RankBiserial,
+    /// The probability of superiority, P(X > Y) + ½ P(X = Y).
+    #[serde(rename = "probability-of-superiority")]
+    ProbabilityOfSuperiority,
+}
+
+/// Which test statistic.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum StatisticKind {
+    /// Student's or Welch's t.
+    #[serde(rename = "t")]
+    T,
+    /// Mann–Whitney U of the first group.
+    #[serde(rename = "U")]
+    U,
+    /// Wilcoxon's W+, the sum of the positive ranks.
+    #[serde(rename = "W+")]
+    WPlus,
+}
+
+/// Which test of equal spread.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum SpreadMethod {
+    /// Brown–Forsythe: deviations from the medians (drives `checked`).
+    BrownForsythe,
+    /// Levene: deviations from the means (reported).
+    Levene,
 }

@@ -11,7 +11,7 @@ use attest::plan::{
     Comparison, DataFormat, DataSpec, Design, Deviation, ExcludeKind, ExcludeRule, Hypothesis,
     Method, Plan,
 };
-use attest::render::{render_plan, render_report};
+use attest::render::{render_plan, render_run};
 use attest::results::*;
 use attest::stats::multiplicity::Correction;
 use attest::stats::{Alternative, PMethod};
@@ -19,25 +19,49 @@ use attest::stats::{Alternative, PMethod};
 fn summary(label: &str, n: usize, mean: f64, sd: f64, q: [f64; 5]) -> GroupSummary {
     GroupSummary {
         label: label.into(),
-        n,
-        mean,
-        sd: Some(sd),
-        se: Some(sd / (n as f64).sqrt()),
-        median: q[2],
-        q1: q[1],
-        q3: q[3],
-        min: q[0],
-        max: q[4],
-        skewness: Some(0.21),
-        excess_kurtosis: Some(-0.4),
+        describe: attest::stats::describe::Descriptives {
+            n,
+            mean,
+            sd: Some(sd),
+            se: Some(sd / (n as f64).sqrt()),
+            median: q[2],
+            q1: q[1],
+            q3: q[3],
+            min: q[0],
+            max: q[4],
+            skewness: Some(0.21),
+            excess_kurtosis: Some(-0.4),
+        },
         mean_ci: Some([mean - 0.5, mean + 0.5]),
     }
 }
 
+/// A figure set as the model holds it: sorted points, their normal
+/// quantiles at (i + ½)/n and the line through the quartiles. The
+/// quantiles come from statrs (an outside implementation), so nothing here
+/// is attest's own statistics code.
 fn plot(label: &str, points: &[f64]) -> PlotData {
+    use statrs::distribution::{ContinuousCDF, Normal};
+    let z = |p: f64| Normal::standard().inverse_cdf(p);
+    let mut sorted = points.to_vec();
+    sorted.sort_by(f64::total_cmp);
+    let n = sorted.len();
+    let quartile = |f: f64| {
+        let pos = f * (n - 1) as f64;
+        let (i, frac) = (pos.floor() as usize, pos.fract());
+        sorted[i] + (sorted[(i + 1).min(n - 1)] - sorted[i]) * frac
+    };
+    let slope = (quartile(0.75) - quartile(0.25)) / (z(0.75) - z(0.25));
     PlotData {
         label: label.into(),
-        points: points.to_vec(),
+        qq: QqData {
+            theoretical: (0..n).map(|i| z((i as f64 + 0.5) / n as f64)).collect(),
+            line: Some(QqLine {
+                intercept: quartile(0.25) - slope * z(0.25),
+                slope,
+            }),
+        },
+        points: sorted,
         sampled: false,
         bin_edges: vec![-2.0, -1.0, 0.0, 1.0, 2.0, 3.0],
         bin_counts: vec![1, 3, 4, 5, 2],
@@ -109,21 +133,21 @@ fn plan() -> Plan {
 
 fn h1() -> HypothesisResult {
     let estimate = Estimate {
-        name: "mean difference".into(),
+        name: EstimateKind::MeanDifference,
         value: 0.62,
         ci_low: Some(0.19),
         ci_high: None,
         confidence: 0.95,
     };
     let effect = EffectSize {
-        name: "cohen-d".into(),
+        name: EffectKind::CohenD,
         value: 0.58,
         ci_low: Some(0.18),
         ci_high: None,
     };
     let test = TestResult {
-        method: "welch-t".into(),
-        statistic_name: "t".into(),
+        method: Method::WelchT,
+        statistic_name: StatisticKind::T,
         statistic: 2.41,
         df: Some(41.37),
         z: None,
@@ -133,7 +157,7 @@ fn h1() -> HypothesisResult {
         effects: vec![
             effect.clone(),
             EffectSize {
-                name: "hedges-g".into(),
+                name: EffectKind::HedgesG,
                 value: 0.57,
                 ci_low: Some(0.17),
                 ci_high: None,
@@ -144,9 +168,9 @@ fn h1() -> HypothesisResult {
     HypothesisResult {
         id: "H1".into(),
         claim: "Drip-watered plants yield more fruit than hand-watered plants".into(),
-        design: "independent".into(),
-        method_planned: "checked".into(),
-        method: "welch-t".into(),
+        design: Design::Independent,
+        method_planned: Method::Checked,
+        method: Method::WelchT,
         alternative: Alternative::Greater,
         outcome_label: "fruit per plant".into(),
         units: Some("kg".into()),
@@ -187,7 +211,7 @@ fn h1() -> HypothesisResult {
             ],
             spread: vec![
                 SpreadCheck {
-                    method: "brown-forsythe".into(),
+                    method: SpreadMethod::BrownForsythe,
                     f: Some(4.62),
                     df1: Some(1.0),
                     df2: Some(45.0),
@@ -196,7 +220,7 @@ fn h1() -> HypothesisResult {
                     not_run: None,
                 },
                 SpreadCheck {
-                    method: "levene".into(),
+                    method: SpreadMethod::Levene,
                     f: Some(5.08),
                     df1: Some(1.0),
                     df2: Some(45.0),
@@ -208,22 +232,22 @@ fn h1() -> HypothesisResult {
             branch: Some(Branch::NormalUnequalSpread),
         },
         robustness: vec![TestResult {
-            method: "mann-whitney".into(),
-            statistic_name: "U".into(),
+            method: Method::MannWhitney,
+            statistic_name: StatisticKind::U,
             statistic: 371.5,
             df: None,
             z: Some(2.08),
             p: 0.0188,
             p_method: Some(PMethod::NormalApproximation),
             estimate: Estimate {
-                name: "Hodges–Lehmann shift".into(),
+                name: EstimateKind::HodgesLehmannShift,
                 value: 0.6,
                 ci_low: Some(0.1),
                 ci_high: None,
                 confidence: 0.95,
             },
             effects: vec![EffectSize {
-                name: "rank-biserial".into(),
+                name: EffectKind::RankBiserial,
                 value: 0.35,
                 ci_low: Some(0.06),
                 ci_high: None,
@@ -260,21 +284,21 @@ fn h1() -> HypothesisResult {
 
 fn h2() -> HypothesisResult {
     let estimate = Estimate {
-        name: "Hodges–Lehmann shift".into(),
+        name: EstimateKind::HodgesLehmannShift,
         value: 0.75,
         ci_low: Some(-0.25),
         ci_high: Some(1.5),
         confidence: 0.95,
     };
     let effect = EffectSize {
-        name: "rank-biserial".into(),
+        name: EffectKind::RankBiserial,
         value: 0.29,
         ci_low: Some(-0.12),
         ci_high: Some(0.61),
     };
     let test = TestResult {
-        method: "wilcoxon-signed-rank".into(),
-        statistic_name: "W+".into(),
+        method: Method::WilcoxonSignedRank,
+        statistic_name: StatisticKind::WPlus,
         statistic: 118.0,
         df: None,
         z: None,
@@ -287,9 +311,9 @@ fn h2() -> HypothesisResult {
     HypothesisResult {
         id: "H2".into(),
         claim: "Volunteer hours changed after the tool library opened".into(),
-        design: "paired".into(),
-        method_planned: "wilcoxon-signed-rank".into(),
-        method: "wilcoxon-signed-rank".into(),
+        design: Design::Paired,
+        method_planned: Method::WilcoxonSignedRank,
+        method: Method::WilcoxonSignedRank,
         alternative: Alternative::TwoSided,
         outcome_label: "weekly hours".into(),
         units: Some("h".into()),
@@ -334,11 +358,7 @@ fn h2() -> HypothesisResult {
             unpaired: [1, 1],
             analysed: [18, 18],
         },
-        plot: vec![
-            plot("hours_after", &[1.0, 3.0, 4.0, 5.0, 6.0, 9.0]),
-            plot("hours_before", &[1.0, 3.0, 4.0, 4.5, 5.5, 8.0]),
-            plot("difference", &[-2.0, -1.0, 0.0, 0.5, 1.0, 1.5, 3.0]),
-        ],
+        plot: vec![plot("difference", &[-2.0, -1.0, 0.0, 0.5, 1.0, 1.5, 3.0])],
         paired_plot: Some(PairedPlot {
             pairs: vec![
                 [5.0, 4.0],
@@ -380,9 +400,41 @@ fn scenario() -> Results {
             outside_plan_folder: false,
         },
         hypotheses: vec![h1(), h2()],
+        correction_applied: Correction::Holm,
         command: "attest run garden.toml".into(),
         analysis_file: "garden.toml".into(),
     }
+}
+
+/// The report's files from one render, by kind.
+#[derive(Debug, PartialEq)]
+struct Rendered {
+    report_md: String,
+    report_html: String,
+    figures: Vec<(String, String)>,
+}
+
+fn render_report(
+    r: &Results,
+    templates: Option<&std::path::Path>,
+) -> attest::error::Result<Rendered> {
+    let files = render_run(r, templates)?;
+    let text = |name: &str| {
+        files
+            .iter()
+            .find(|o| o.name == name)
+            .map(|o| String::from_utf8(o.bytes.clone()).unwrap())
+            .unwrap_or_default()
+    };
+    Ok(Rendered {
+        report_md: text("report.md"),
+        report_html: text("report.html"),
+        figures: files
+            .iter()
+            .filter(|o| o.name.starts_with("figures/"))
+            .map(|o| (o.name.clone(), String::from_utf8(o.bytes.clone()).unwrap()))
+            .collect(),
+    })
 }
 
 fn lock_of(r: &Results) -> attest::lock::LockFile {

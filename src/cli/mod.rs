@@ -149,7 +149,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
                 ))
                 .help("e.g. --alpha 0.05"));
             }
-            let q = crate::planning::Question {
+            let q = crate::analysis::planning::Question {
                 design: design.into(),
                 effect,
                 power,
@@ -161,16 +161,16 @@ fn dispatch(cli: Cli) -> Result<i32> {
                 simulate,
                 seed,
             };
-            let a = crate::planning::answer(&q)?;
+            let a = crate::analysis::planning::answer(&q)?;
             if json {
                 say(&terminal::power_json(&a))?;
             } else {
-                say(&crate::render::planning::answer_lines(&a).join("\n"))?;
+                say(&crate::render::view::planning::answer_lines(&a).join("\n"))?;
             }
         }
         Command::Values { file, unlocked } => {
             let r = pipeline::compute(&file, unlocked)?;
-            let v = crate::values::from_results(&r)?;
+            let v = crate::render::values::from_results(&r)?;
             let width = v.iter().map(|(k, _)| k.len() + 1).max().unwrap_or(0);
             let lines: Vec<String> = v
                 .iter()
@@ -178,7 +178,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
                     format!(
                         "{:<width$}  {}",
                         format!("\\{k}"),
-                        crate::values::plain(val)
+                        crate::render::values::plain(val)
                     )
                 })
                 .collect();

@@ -3,8 +3,8 @@
 
 use crate::pipeline::{LockOutcome, RunOutcome};
 use crate::plan::{AnalysisFile, Comparison};
-use crate::render::apa;
-use crate::results::{Decision, LockState, Results};
+use crate::render::view::apa;
+use crate::results::{EffectKind, LockState, Results};
 
 /// `attest check`: a one-screen summary of the plan.
 pub fn plan_summary(f: &AnalysisFile) -> String {
@@ -136,27 +136,21 @@ pub fn run_summary(o: &RunOutcome, colour: bool) -> String {
     for h in &r.hypotheses {
         let est = &h.estimate;
         let eff = &h.effect;
-        let verdict = match (&h.equivalence, h.decision) {
-            (Some(_), Decision::Reject) => "equivalent within the bounds",
-            (Some(_), Decision::Retain) => "not shown equivalent",
-            (None, Decision::Reject) => "supported",
-            (None, Decision::Retain) => "not supported",
-        };
-        let effect_value = if matches!(
-            eff.name.as_str(),
-            "rank-biserial" | "probability-of-superiority"
-        ) {
-            apa::bounded(eff.value, 2)
-        } else {
-            apa::two(eff.value)
+        let verdict = crate::render::view::verdict(h);
+        let (symbol, effect_value) = match eff.name {
+            EffectKind::CohenD => ("d", apa::two(eff.value)),
+            EffectKind::HedgesG => ("g", apa::two(eff.value)),
+            EffectKind::DZ => ("dz", apa::two(eff.value)),
+            EffectKind::RankBiserial => ("r", apa::bounded(eff.value, 2)),
+            EffectKind::ProbabilityOfSuperiority => ("PS", apa::bounded(eff.value, 2)),
         };
         s.push_str(&format!(
             "{:<width$}  {}  diff {} {}  {} {}  p {}  {}\n",
             h.id,
-            h.method,
+            h.method.as_str(),
             apa::two(est.value),
             apa::bounds(est.ci_low, est.ci_high, apa::two),
-            effect_symbol(&eff.name),
+            symbol,
             effect_value,
             apa::p_number(h.p_adjusted),
             paint(verdict, colour),
@@ -194,20 +188,9 @@ pub fn verification(v: &crate::verify::Verification) -> String {
 }
 
 /// The short symbol of an effect size on the terminal.
-fn effect_symbol(name: &str) -> &str {
-    match name {
-        "cohen-d" => "d",
-        "hedges-g" => "g",
-        "d-z" => "dz",
-        "rank-biserial" => "r",
-        "probability-of-superiority" => "PS",
-        other => other,
-    }
-}
-
 /// `attest power --json`: the answer, with `n` a number for one-group
 /// designs and an array of group sizes for independent ones.
-pub fn power_json(a: &crate::planning::Answer) -> String {
+pub fn power_json(a: &crate::analysis::planning::Answer) -> String {
     let mut v = serde_json::to_value(a).expect("an answer always serialises");
     if a.n.len() == 1 {
         v["n"] = serde_json::json!(a.n[0]);

@@ -10,27 +10,85 @@
 //! Markdown; HTML is produced from the Markdown (see [`markdown`]), so both
 //! outputs say the same thing.
 
-pub mod apa;
-pub mod figures;
 pub mod markdown;
+mod markdown_report;
 mod plan_doc;
-pub mod planning;
-mod report;
-pub mod sentence;
+mod results_json;
+mod svg;
+pub mod values;
+pub mod view;
 
 use crate::error::{Failure, Result};
+use crate::results::Results;
 use minijinja::{AutoEscape, Environment, Value};
 use std::path::{Component, Path, PathBuf};
 
-/// A rendered report: Markdown, HTML and the figures as separate files.
+/// One file of a run's output set: its name relative to the output folder
+/// (figures carry their folder, `figures/…`) and its bytes.
 #[derive(Clone, Debug, PartialEq, Eq)]
-pub struct Rendered {
-    /// `report.md`: figures referenced by file name.
-    pub report_md: String,
-    /// `report.html`: self-contained, figures inline.
-    pub report_html: String,
-    /// Figure files: (file name, e.g. "h1-groups.svg", SVG text).
-    pub figures: Vec<(String, String)>,
+pub struct Output {
+    /// Relative file name, e.g. `report.md`, `figures/h1-qq.svg`.
+    pub name: String,
+    /// The file's bytes.
+    pub bytes: Vec<u8>,
+}
+
+impl Output {
+    pub(crate) fn new(name: impl Into<String>, text: impl Into<String>) -> Self {
+        Output {
+            name: name.into(),
+            bytes: text.into().into_bytes(),
+        }
+    }
+}
+
+/// What every renderer is handed: the typed model, the words the view made
+/// of it, and the template environment (the user's folder first).
+pub(crate) struct Context<'a> {
+    /// The results model, for renderers that draw its numbers (figures) or
+    /// hand it to templates.
+    pub results: &'a Results,
+    /// The words and numbers a reader sees.
+    pub view: &'a view::ReportView,
+    /// Templates, for the formats written through them.
+    pub env: &'a Environment<'static>,
+}
+
+/// One output format. A renderer reads the context (and the files the
+/// renderers before it produced, e.g. HTML inlines the SVGs) and returns
+/// its files; it computes nothing and never writes to disk.
+pub(crate) trait Renderer: Sync {
+    /// The files of this format.
+    fn render(&self, cx: &Context, done: &[Output]) -> Result<Vec<Output>>;
+}
+
+/// Every output format of a run, in the order its files are written
+/// (`results.json` last, so its presence means the run completed). A new
+/// format is one new module and one line here.
+const RENDERERS: &[&dyn Renderer] = &[
+    &svg::Svg,
+    &values::NamedValues,
+    &markdown_report::Markdown,
+    &markdown_report::Html,
+    &results_json::ResultsJson,
+];
+
+/// Renders every output of a run. `templates` is a folder whose files
+/// override the embedded templates of the same name.
+pub fn render_run(results: &Results, templates: Option<&Path>) -> Result<Vec<Output>> {
+    let env = environment(templates);
+    let view = view::report(results);
+    let cx = Context {
+        results,
+        view: &view,
+        env: &env,
+    };
+    let mut done = Vec::new();
+    for r in RENDERERS {
+        let files = r.render(&cx, &done)?;
+        done.extend(files);
+    }
+    Ok(done)
 }
 
 /// The rendered preregistration document.
@@ -42,22 +100,13 @@ pub struct PlanDoc {
     pub plan_html: String,
 }
 
-/// Renders the report for one run. `templates` is a folder whose files
-/// override the embedded templates of the same name.
-pub fn render_report(
-    results: &crate::results::Results,
-    templates: Option<&Path>,
-) -> Result<Rendered> {
-    report::render(results, &environment(templates))
-}
-
 /// Renders the preregistration document from a lock.
 ///
 /// `planned` holds, for each hypothesis in plan order, the sample size its
 /// `[hypothesis.planning]` implies (computed by the caller).
 pub fn render_plan(
     lock: &crate::lock::LockFile,
-    planned: &[Option<crate::planning::Planned>],
+    planned: &[Option<crate::analysis::planning::Planned>],
     templates: Option<&Path>,
 ) -> Result<PlanDoc> {
     plan_doc::render(lock, planned, &environment(templates))
@@ -161,10 +210,7 @@ fn template_failure(name: &str, e: &minijinja::Error) -> Failure {
         .help("check the template in the --templates folder, or remove it to use the built-in one")
 }
 
-/// Markdown the renderer wrote itself: inserted into templates as it is.
-fn md(s: impl Into<String>) -> Value {
-    Value::from_safe_string(s.into())
-}
+use view::md;
 
 /// Wraps a Markdown body in the HTML page template.
 fn page(

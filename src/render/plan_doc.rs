@@ -6,9 +6,9 @@
 //! comes from the locked plan, so the document cannot say more than the
 //! lock holds.
 
-use super::apa;
 use super::markdown::{escape, escape_paragraphs};
-use super::sentence::method_name;
+use super::view::apa;
+use super::view::sentence::method_name;
 use super::{md, page, render_template, PlanDoc};
 use crate::error::Result;
 use crate::lock::LockFile;
@@ -19,7 +19,7 @@ use minijinja::{Environment, Value};
 /// Renders plan.md and plan.html.
 pub(super) fn render(
     lock: &LockFile,
-    planned: &[Option<crate::planning::Planned>],
+    planned: &[Option<crate::analysis::planning::Planned>],
     env: &Environment<'static>,
 ) -> Result<PlanDoc> {
     let p = &lock.plan;
@@ -32,12 +32,7 @@ pub(super) fn render(
                 Some(pl) => format!(
                     "{}: {}",
                     escape(&h.id),
-                    super::planning::planned_sentence(
-                        pl,
-                        h.design.as_str(),
-                        p.alpha,
-                        h.alternative
-                    )
+                    super::view::planning::planned_sentence(pl, h.design, p.alpha, h.alternative)
                 ),
                 None => format!("{}: not stated in the plan.", escape(&h.id)),
             })
@@ -55,7 +50,7 @@ pub(super) fn render(
             "Each hypothesis is judged at α = {}; intervals are {} intervals; {}. Seed for anything resampled: {}.",
             apa::bounded(p.alpha, 3).trim_end_matches('0'),
             apa::level(p.confidence),
-            super::sentence::correction_method(p.correction)
+            super::view::sentence::correction_method(p.correction)
                 .map(|m| format!("p values are adjusted across the hypotheses with {m}"))
                 .unwrap_or_else(|| "p values are not adjusted for multiple hypotheses".into()),
             p.seed
@@ -188,7 +183,7 @@ fn choice(h: &Hypothesis, check_alpha: f64) -> String {
     if h.method != Method::Checked {
         return format!(
             "{id}: {}, fixed in the plan; the checks are reported but decide nothing.",
-            method_name(h.method.as_str())
+            method_name(h.method)
         );
     }
     match h.design {

@@ -37,6 +37,16 @@ pub struct Descriptives {
     pub excess_kurtosis: Option<f64>,
 }
 
+/// Two-sided t interval for the mean at `level`:
+/// mean ± t(½ + level/2; n − 1)·SE (Student 1908; common practice). None
+/// when the SE is undefined or zero.
+pub fn mean_interval(d: &Descriptives, level: f64) -> Option<[f64; 2]> {
+    d.se.filter(|se| *se > 0.0).map(|se| {
+        let q = super::dist::t_quantile(0.5 + level / 2.0, (d.n - 1) as f64);
+        [d.mean - q * se, d.mean + q * se]
+    })
+}
+
 /// Describes a sample. Needs at least one value, all finite.
 pub fn describe(x: &[f64]) -> Result<Descriptives, StatsError> {
     if x.is_empty() {

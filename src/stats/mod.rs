@@ -73,6 +73,35 @@ pub struct Interval {
     pub level: f64,
 }
 
+/// The verdict of a test at level α.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Decision {
+    /// The null hypothesis is rejected in the preregistered direction.
+    Reject,
+    /// The null hypothesis is retained.
+    Retain,
+}
+
+impl Decision {
+    /// The one rejection rule every part of attest uses: reject exactly
+    /// when p < α (a p equal to α, which exact rank tests can give, is
+    /// retained; common practice, and the rule the intervals follow: the
+    /// interval excludes the null exactly when p < α).
+    pub fn at(p: f64, alpha: f64) -> Decision {
+        if p < alpha {
+            Decision::Reject
+        } else {
+            Decision::Retain
+        }
+    }
+
+    /// Whether the null was rejected.
+    pub fn rejected(self) -> bool {
+        self == Decision::Reject
+    }
+}
+
 /// How a p value was obtained.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]

@@ -608,7 +608,7 @@ pub fn simulate_power(
                 }
             }
         };
-        if p <= alpha {
+        if super::Decision::at(p, alpha).rejected() {
             hits += 1;
         }
     }

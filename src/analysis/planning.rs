@@ -79,8 +79,8 @@ pub struct Simulated {
 pub struct Answer {
     /// What was solved for.
     pub solved: Solved,
-    /// Design name.
-    pub design: String,
+    /// The design.
+    pub design: Design,
     /// Sidedness.
     pub alternative: Alternative,
     /// Significance level.
@@ -229,7 +229,7 @@ pub fn answer(q: &Question) -> Result<Answer> {
     };
     Ok(Answer {
         solved,
-        design: q.design.as_str().into(),
+        design: q.design,
         alternative: q.alternative,
         alpha: q.alpha,
         effect,

@@ -6,48 +6,52 @@
 //! template as it is. The numbers come from [`super::apa`].
 
 use super::apa::{self, sym, two};
-use super::markdown::escape;
-use crate::results::{Decision, EffectSize, Estimate, GroupSummary, HypothesisResult, TestResult};
+use crate::render::markdown::escape;
+use crate::results::{
+    Decision, Design, EffectKind, EffectSize, Estimate, EstimateKind, GroupSummary,
+    HypothesisResult, Method, StatisticKind, TestResult,
+};
 use crate::stats::multiplicity::Correction;
 use crate::stats::Alternative;
 
-/// The plain name of a method as analysis files spell it.
-pub fn method_name(method: &str) -> String {
+/// The plain name of a method as a reader knows it.
+pub fn method_name(method: Method) -> String {
     match method {
-        "student-t" => "Student's t-test".into(),
-        "welch-t" => "Welch's t-test".into(),
-        "mann-whitney" => "Mann–Whitney U test".into(),
-        "paired-t" => "paired t-test".into(),
-        "wilcoxon-signed-rank" => "Wilcoxon signed-rank test".into(),
-        "one-sample-t" => "one-sample t-test".into(),
-        "checked" => "chosen by the checks, `checked`".into(),
-        other => escape(other),
+        Method::StudentT => "Student's t-test",
+        Method::WelchT => "Welch's t-test",
+        Method::MannWhitney => "Mann–Whitney U test",
+        Method::PairedT => "paired t-test",
+        Method::WilcoxonSignedRank => "Wilcoxon signed-rank test",
+        Method::OneSampleT => "one-sample t-test",
+        Method::Checked => "chosen by the checks, `checked`",
     }
+    .into()
 }
 
-/// Whether a method is a rank test.
-pub fn is_rank(method: &str) -> bool {
-    matches!(method, "mann-whitney" | "wilcoxon-signed-rank")
+/// What an estimate of the difference is called in sentences and figures.
+pub fn estimate_name(kind: EstimateKind) -> &'static str {
+    match kind {
+        EstimateKind::MeanDifference => "mean difference",
+        EstimateKind::HodgesLehmannShift => "Hodges–Lehmann shift",
+        EstimateKind::HodgesLehmannEstimate => "Hodges–Lehmann estimate",
+    }
 }
 
 /// The statistic with its df: `Welch's *t*(97.31) = 2.71`, `*t*(48) = 2.71`,
 /// `Mann–Whitney *U* = 312, *z* = 2.31`, `Wilcoxon *W*+ = 123`.
 pub fn statistic(test: &TestResult) -> String {
-    let welch = test.method == "welch-t";
-    match test.method.as_str() {
-        "mann-whitney" | "wilcoxon-signed-rank" => {
-            let (who, s) = if test.method == "mann-whitney" {
-                ("Mann–Whitney", sym("U"))
-            } else {
-                ("Wilcoxon", format!("{}+", sym("W")))
-            };
-            let mut out = format!("{who} {s} = {}", apa::rank_statistic(test.statistic));
-            if let Some(z) = test.z {
-                out.push_str(&format!(", {} = {}", sym("z"), two(z)));
-            }
-            out
+    let welch = test.method == Method::WelchT;
+    let rank = |who: &str, s: String| {
+        let mut out = format!("{who} {s} = {}", apa::rank_statistic(test.statistic));
+        if let Some(z) = test.z {
+            out.push_str(&format!(", {} = {}", sym("z"), two(z)));
         }
-        _ => {
+        out
+    };
+    match test.statistic_name {
+        StatisticKind::U => rank("Mann–Whitney", sym("U")),
+        StatisticKind::WPlus => rank("Wilcoxon", format!("{}+", sym("W"))),
+        StatisticKind::T => {
             let df = test
                 .df
                 .map(|d| format!("({})", apa::df(d, welch)))
@@ -58,20 +62,22 @@ pub fn statistic(test: &TestResult) -> String {
     }
 }
 
-/// An effect size with its symbol and (when computed) its interval.
+/// An effect size's symbol and the number rule its values follow.
+fn effect_symbol(kind: EffectKind) -> (String, fn(f64) -> String) {
+    let bounded: fn(f64) -> String = |x| apa::bounded(x, 2);
+    match kind {
+        EffectKind::CohenD => (sym("d"), two),
+        EffectKind::HedgesG => (sym("g"), two),
+        EffectKind::DZ => (format!("{}z", sym("d")), two),
+        EffectKind::RankBiserial => (format!("rank-biserial {}", sym("r")), bounded),
+        EffectKind::ProbabilityOfSuperiority => ("probability of superiority".into(), bounded),
+    }
+}
+
+/// An effect size with its symbol and (when computed) its interval:
+/// `*d* = 0.52, 95% CI [0.11, 0.93]`.
 pub fn effect(e: &EffectSize, confidence: f64) -> String {
-    let (name, fmt): (String, fn(f64) -> String) = match e.name.as_str() {
-        "cohen-d" => (sym("d"), two),
-        "hedges-g" => (sym("g"), two),
-        "d-z" => (format!("{}z", sym("d")), two),
-        "rank-biserial" => (format!("rank-biserial {}", sym("r")), |x| {
-            apa::bounded(x, 2)
-        }),
-        "probability-of-superiority" => {
-            ("probability of superiority".into(), |x| apa::bounded(x, 2))
-        }
-        other => (escape(other), two),
-    };
+    let (name, fmt) = effect_symbol(e.name);
     let mut out = format!("{name} = {}", fmt(e.value));
     if e.ci_low.is_some() || e.ci_high.is_some() {
         out.push_str(&format!(
@@ -82,12 +88,23 @@ pub fn effect(e: &EffectSize, confidence: f64) -> String {
     out
 }
 
+/// An effect size with its bounds but no level, for a table whose header
+/// states the level: `*d* = 0.52 [0.11, 0.93]`.
+pub fn effect_with_bounds(e: &EffectSize) -> String {
+    let (name, fmt) = effect_symbol(e.name);
+    let mut out = format!("{name} = {}", fmt(e.value));
+    if e.ci_low.is_some() || e.ci_high.is_some() {
+        out.push_str(&format!(" {}", apa::bounds(e.ci_low, e.ci_high, fmt)));
+    }
+    out
+}
+
 /// An estimate of the difference with its interval and units.
 pub fn estimate(e: &Estimate, units: Option<&str>) -> String {
     let u = units.map(|u| format!(" {}", escape(u))).unwrap_or_default();
     format!(
         "{} = {}{u}, {}",
-        escape(&e.name),
+        estimate_name(e.name),
         two(e.value),
         apa::ci(e.confidence, e.ci_low, e.ci_high, two)
     )
@@ -129,7 +146,9 @@ pub fn p_of(h: &HypothesisResult, correction: Correction) -> String {
 }
 
 fn describe(g: Option<&GroupSummary>, rank: bool) -> String {
-    let Some(g) = g else { return String::new() };
+    let Some(g) = g.map(|g| &g.describe) else {
+        return String::new();
+    };
     if rank {
         format!(" ({} = {})", sym("Mdn"), two(g.median))
     } else {
@@ -159,7 +178,7 @@ pub fn one_sentence(h: &HypothesisResult, correction: Correction) -> String {
     if let Some(eq) = &h.equivalence {
         return equivalence_sentence(h, eq);
     }
-    let rank = is_rank(&h.method);
+    let rank = h.method.is_rank();
     let outcome = escape(&h.outcome_label);
     let (a, b) = (escape(&h.labels[0]), escape(&h.labels[1]));
     let (da, db) = (
@@ -178,12 +197,12 @@ pub fn one_sentence(h: &HypothesisResult, correction: Correction) -> String {
         (true, true) => "tended to be higher",
         (true, false) => "tended to be lower",
     };
-    let (on_a, on_b) = match h.design.as_str() {
-        "paired" => (format!("in {a}"), format!("in {b}")),
-        _ => (format!("for {a}"), format!("for {b}")),
+    let (on_a, on_b) = match h.design {
+        Design::Paired => (format!("in {a}"), format!("in {b}")),
+        Design::Independent | Design::OneSample => (format!("for {a}"), format!("for {b}")),
     };
-    let lead = match (h.design.as_str(), rejected, h.alternative) {
-        ("one-sample", _, _) => {
+    let lead = match (h.design, rejected, h.alternative) {
+        (Design::OneSample, _, _) => {
             let reference = h.reference.map(two).unwrap_or_default();
             let verb = if rejected {
                 format!("was {word} than")
@@ -232,17 +251,16 @@ fn equivalence_sentence(h: &HypothesisResult, eq: &crate::results::EquivalenceRe
         .as_deref()
         .map(|u| format!(" {}", escape(u)))
         .unwrap_or_default();
-    let welch = h.method == "welch-t";
+    let welch = h.method == Method::WelchT;
     let df = apa::df(eq.df, welch);
     let verdict = if h.decision == Decision::Reject {
         "was equivalent within the bounds"
     } else {
         "was not shown equivalent within the bounds"
     };
-    let between = if h.design == "one-sample" {
-        format!("{a} and the reference value")
-    } else {
-        format!("{a} and {b}")
+    let between = match h.design {
+        Design::OneSample => format!("{a} and the reference value"),
+        Design::Independent | Design::Paired => format!("{a} and {b}"),
     };
     format!(
         "The difference in {outcome} between {between} {verdict} of {} and {}{u} (two one-sided tests: {t}({df}) = {}, {}; {t}({df}) = {}, {}); difference = {}{u}, {}.",
@@ -256,14 +274,4 @@ fn equivalence_sentence(h: &HypothesisResult, eq: &crate::results::EquivalenceRe
         apa::ci(eq.ci_level, Some(eq.ci_low), Some(eq.ci_high), two),
         t = sym("t"),
     )
-}
-
-/// The correction that actually applies: with a single hypothesis there is
-/// nothing to correct for, whatever the plan names.
-pub fn applied_correction(r: &crate::results::Results) -> Correction {
-    if r.hypotheses.len() < 2 {
-        Correction::None
-    } else {
-        r.plan.correction
-    }
 }

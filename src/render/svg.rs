@@ -9,27 +9,27 @@
 //! the common forms of colour blindness. Jitter is a fixed low-discrepancy
 //! sequence, never random, so the same results give the same bytes.
 
-use crate::results::{HypothesisResult, PlotData};
-use crate::stats::dist::normal_quantile;
-use crate::stats::Alternative;
+use super::view::{FigureRole, FigureView};
+use crate::results::{HypothesisResult, PlotData, Results};
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
-/// One rendered figure.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Figure {
-    /// Where the report places it: `groups`, `pairs`, `qq`, `differences`, `difference`.
-    pub role: &'static str,
-    /// File name, e.g. `h1-groups.svg`.
-    pub file: String,
-    /// The question it answers (the figure title).
-    pub title: String,
-    /// Short alternative text.
-    pub alt: String,
-    /// What is drawn, in a sentence or two (the figure note and `<desc>`).
-    pub desc: String,
-    /// The SVG document.
-    pub svg: String,
+/// The SVG renderer: one file per figure the view lists.
+pub(crate) struct Svg;
+
+impl super::Renderer for Svg {
+    fn render(
+        &self,
+        cx: &super::Context,
+        _done: &[super::Output],
+    ) -> crate::error::Result<Vec<super::Output>> {
+        Ok(cx
+            .view
+            .figures
+            .iter()
+            .map(|f| super::Output::new(f.file.clone(), draw(cx.results, f)))
+            .collect())
+    }
 }
 
 const BLUE: RGBColor = RGBColor(0x00, 0x72, 0xB2);
@@ -38,171 +38,40 @@ const VERMILLION: RGBColor = RGBColor(0xD5, 0x5E, 0x00);
 const GREY: RGBColor = RGBColor(0x55, 0x55, 0x55);
 const PALETTE: [RGBColor; 2] = [BLUE, ORANGE];
 
-/// A file-name stem for a hypothesis id: lowercase letters, digits and
-/// dashes; `h<n>` when nothing is left or the stem is taken.
-pub fn stem(id: &str, index: usize, used: &[String]) -> String {
-    let s: String = id
-        .chars()
-        .map(|c| {
-            if c.is_ascii_alphanumeric() {
-                c.to_ascii_lowercase()
-            } else {
-                '-'
-            }
-        })
-        .collect();
-    let s = s.trim_matches('-').to_string();
-    if s.is_empty() || used.contains(&s) {
-        format!("h{}", index + 1)
-    } else {
-        s
-    }
-}
-
-/// The figures of one hypothesis, in the order the report shows them.
-pub fn for_hypothesis(h: &HypothesisResult, stem: &str) -> Vec<Figure> {
-    let mut out = Vec::new();
-    let sampled =
-        h.plot.iter().any(|p| p.sampled) || h.paired_plot.as_ref().is_some_and(|p| p.sampled);
-    let sample_note = if sampled {
-        " The points are an evenly spaced sample of the sorted values, not every value."
-    } else {
-        ""
+/// Draws one figure: the drawing its role names, from the model's plot
+/// data, with the view's words.
+pub(crate) fn draw(r: &Results, f: &FigureView) -> String {
+    let h = &r.hypotheses[f.hypothesis];
+    let size = match f.role {
+        FigureRole::Qq => (520, 280),
+        _ => (520, 300),
     };
-    let unit = h
-        .units
-        .as_deref()
-        .map(|u| format!(" ({u})"))
-        .unwrap_or_default();
-    let axis = format!("{}{unit}", h.outcome_label);
-    if h.design == "paired" {
-        if let Some(pp) = &h.paired_plot {
-            let desc = format!(
-                "Each line joins one unit's value in {} (left) to its value in {} (right).{}",
-                h.labels[0],
-                h.labels[1],
-                if pp.sampled {
-                    " The lines are a sample of all units."
-                } else {
-                    ""
-                }
-            );
-            out.push(make(
-                stem,
-                "pairs",
-                "Each unit, before and after",
-                desc,
-                |a| pairs(a, h, &axis),
-            ));
-        }
-    } else {
-        let desc = format!(
-            "Each dot is one value, spread sideways only to avoid overlap. The box spans the quartiles with the median as a line; the whiskers reach the smallest and largest values.{}{sample_note}",
-            if h.design == "one-sample" { " The dashed line marks the reference value." } else { "" }
-        );
-        out.push(make(stem, "groups", "Each group's values", desc, |a| {
-            groups(a, h, &axis)
-        }));
-    }
-    let qq_sets: Vec<&PlotData> = if h.design == "paired" {
-        h.plot.iter().filter(|p| p.label == "difference").collect()
-    } else {
-        h.plot.iter().collect()
-    };
-    if !qq_sets.is_empty() {
-        let desc = format!(
-            "Sample values against the values a normal distribution would give at the same ranks; points near the line mean the shape is close to normal. The line runs through the quartiles.{sample_note}"
-        );
-        let title = if h.design == "paired" {
-            "Normal Q–Q, the differences"
-        } else {
-            "Normal Q–Q, each group"
-        };
-        out.push(make(stem, "qq", title, desc, |a| qq(a, &qq_sets)));
-    }
-    if h.design == "paired" {
-        if let Some(d) = h
-            .plot
-            .iter()
-            .find(|p| p.label == "difference")
-            .or(h.plot.last())
-        {
-            let desc = format!(
-                "How often each size of difference ({} − {}) occurred, over all analysed units; the dashed line marks zero.",
-                h.labels[0], h.labels[1]
-            );
-            out.push(make(
-                stem,
-                "differences",
-                "Each unit's difference",
-                desc,
-                |a| histogram(a, d, &axis),
-            ));
-        }
-    }
-    let desc = difference_desc(h);
-    out.push(make(
-        stem,
-        "difference",
-        "The difference and its interval",
-        desc,
-        |a| difference(a, h),
-    ));
-    out
-}
-
-fn difference_desc(h: &HypothesisResult) -> String {
-    let e = &h.estimate;
-    let open = match h.alternative {
-        Alternative::TwoSided => "",
-        _ => " The interval is one-sided: its open side runs to the edge of the plot, marked by an arrow.",
-    };
-    let eq = if h.equivalence.is_some() {
-        " Dotted lines mark the equivalence bounds."
-    } else {
-        ""
-    };
-    format!(
-        "The {} (dot) with its {:.0}% confidence interval (bar); the dashed line marks no difference.{open}{eq}",
-        e.name,
-        e.confidence * 100.0
-    )
-}
-
-type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
-type DrawResult = Result<(), Box<dyn std::error::Error>>;
-
-fn make(
-    stem: &str,
-    role: &'static str,
-    title: &str,
-    desc: String,
-    draw: impl FnOnce(&Area) -> DrawResult,
-) -> Figure {
-    let size = if role == "qq" { (520, 280) } else { (520, 300) };
     let mut buf = String::new();
     let drawn = {
         let root = SVGBackend::with_string(&mut buf, size).into_drawing_area();
         let r = root
             .fill(&WHITE)
             .map_err(Into::into)
-            .and_then(|_| draw(&root));
+            .and_then(|_| match f.role {
+                FigureRole::Groups => groups(&root, h, f),
+                FigureRole::Pairs => pairs(&root, h, f),
+                FigureRole::Qq => qq(&root, &h.plot, f),
+                FigureRole::Differences => match h.plot.first() {
+                    Some(d) => histogram(&root, d, f),
+                    None => Ok(()),
+                },
+                FigureRole::Difference => difference(&root, h, f),
+            });
         r.and_then(|_| root.present().map_err(Into::into))
     };
     if drawn.is_err() {
         buf = placeholder(size);
     }
-    let file = format!("figures/{stem}-{role}.svg");
-    let svg = label_svg(&buf, &format!("{stem}-{role}"), title, &desc);
-    Figure {
-        role,
-        file,
-        title: title.into(),
-        alt: format!("{title}: {}", desc.split(". ").next().unwrap_or("")),
-        desc,
-        svg,
-    }
+    label_svg(&buf, &f.id, &f.title, &f.note)
 }
+
+type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
+type DrawResult = Result<(), Box<dyn std::error::Error>>;
 
 fn placeholder(size: (u32, u32)) -> String {
     format!(
@@ -259,14 +128,18 @@ fn jitter(i: usize) -> f64 {
     ((i as f64 * 0.618_033_988_749_895).fract() - 0.5) * 0.36
 }
 
-fn groups(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
+fn groups(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
     let sets = &h.plot;
     let k = sets.len().max(1);
     let mut all: Vec<f64> = sets.iter().flat_map(|p| finite(&p.points)).collect();
-    all.extend(h.groups.iter().flat_map(|g| [g.min, g.max]));
+    all.extend(
+        h.groups
+            .iter()
+            .flat_map(|g| [g.describe.min, g.describe.max]),
+    );
     all.extend(h.reference);
     let (lo, hi) = span(all);
-    let labels: Vec<String> = sets.iter().map(|p| p.label.clone()).collect();
+    let labels = &f.categories;
     let mut chart = ChartBuilder::on(area)
         .margin(12)
         .x_label_area_size(28)
@@ -284,13 +157,13 @@ fn groups(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
                 String::new()
             }
         })
-        .y_desc(axis)
+        .y_desc(&f.value_axis)
         .light_line_style(WHITE)
         .draw()?;
     for (gi, p) in sets.iter().enumerate() {
         let x0 = gi as f64;
         let colour = PALETTE[gi % 2];
-        if let Some(g) = h.groups.get(gi) {
+        if let Some(g) = h.groups.get(gi).map(|g| &g.describe) {
             let w = 0.28;
             chart.draw_series(std::iter::once(Rectangle::new(
                 [(x0 - w, g.q1), (x0 + w, g.q3)],
@@ -336,41 +209,29 @@ fn dashed(from: (f64, f64), to: (f64, f64)) -> Vec<PathElement<(f64, f64)>> {
         .collect()
 }
 
-fn qq(area: &Area, sets: &[&PlotData]) -> DrawResult {
+fn qq(area: &Area, sets: &[PlotData], f: &FigureView) -> DrawResult {
     let panels = area.split_evenly((1, sets.len().max(1)));
     for (gi, (panel, p)) in panels.iter().zip(sets).enumerate() {
-        let ys = finite(&p.points);
-        let n = ys.len();
-        let mut sorted = ys.clone();
-        sorted.sort_by(f64::total_cmp);
-        let xs: Vec<f64> = (0..n)
-            .map(|i| normal_quantile((i as f64 + 0.5) / n as f64))
-            .collect();
+        let xs = &p.qq.theoretical;
+        let sorted = &p.points;
         let (xlo, xhi) = span(xs.iter().copied().chain([-1.0, 1.0]));
         let (ylo, yhi) = span(sorted.iter().copied());
+        let caption = f.categories.get(gi).map_or("", String::as_str);
         let mut chart = ChartBuilder::on(panel)
-            .caption(&p.label, ("sans-serif", 14))
+            .caption(caption, ("sans-serif", 14))
             .margin(10)
             .x_label_area_size(30)
             .y_label_area_size(48)
             .build_cartesian_2d(xlo..xhi, ylo..yhi)?;
         chart
             .configure_mesh()
-            .x_desc("normal quantile")
+            .x_desc(&f.other_axis)
             .x_labels(5)
             .y_labels(5)
             .light_line_style(WHITE)
             .draw()?;
-        if n >= 2 {
-            // Line through the sample's quartiles (common practice).
-            let q = |f: f64| {
-                let pos = f * (n - 1) as f64;
-                let (i, frac) = (pos.floor() as usize, pos.fract());
-                sorted[i] + (sorted[(i + 1).min(n - 1)] - sorted[i]) * frac
-            };
-            let (z1, z3) = (normal_quantile(0.25), normal_quantile(0.75));
-            let slope = (q(0.75) - q(0.25)) / (z3 - z1);
-            let at = |z: f64| q(0.25) + slope * (z - z1);
+        if let Some(line) = p.qq.line {
+            let at = |z: f64| line.intercept + line.slope * z;
             chart.draw_series(std::iter::once(PathElement::new(
                 vec![(xlo, at(xlo)), (xhi, at(xhi))],
                 GREY.stroke_width(1),
@@ -378,14 +239,14 @@ fn qq(area: &Area, sets: &[&PlotData]) -> DrawResult {
         }
         chart.draw_series(
             xs.iter()
-                .zip(&sorted)
+                .zip(sorted.iter())
                 .map(|(&x, &y)| Circle::new((x, y), 3, PALETTE[gi % 2].mix(0.8).filled())),
         )?;
     }
     Ok(())
 }
 
-fn difference(area: &Area, h: &HypothesisResult) -> DrawResult {
+fn difference(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
     let e = &h.estimate;
     let mut vals = vec![0.0, e.value];
     vals.extend(e.ci_low);
@@ -394,11 +255,6 @@ fn difference(area: &Area, h: &HypothesisResult) -> DrawResult {
         vals.extend([eq.low, eq.high, eq.ci_low, eq.ci_high]);
     }
     let (lo, hi) = span(vals);
-    let unit = h
-        .units
-        .as_deref()
-        .map(|u| format!(" ({u})"))
-        .unwrap_or_default();
     let mut chart = ChartBuilder::on(area)
         .margin(14)
         .x_label_area_size(34)
@@ -408,10 +264,7 @@ fn difference(area: &Area, h: &HypothesisResult) -> DrawResult {
         .configure_mesh()
         .disable_y_mesh()
         .disable_y_axis()
-        .x_desc(format!(
-            "{}{unit}, {} − {}",
-            e.name, h.labels[0], h.labels[1]
-        ))
+        .x_desc(&f.value_axis)
         .light_line_style(WHITE)
         .draw()?;
     chart.draw_series(dashed((0.0, 0.0), (0.0, 1.0)))?;
@@ -451,7 +304,7 @@ fn difference(area: &Area, h: &HypothesisResult) -> DrawResult {
     Ok(())
 }
 
-fn pairs(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
+fn pairs(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
     let Some(pp) = &h.paired_plot else {
         return Ok(());
     };
@@ -462,7 +315,7 @@ fn pairs(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
         .filter(|p| p[0].is_finite() && p[1].is_finite())
         .collect();
     let (lo, hi) = span(pts.iter().flat_map(|p| [p[0], p[1]]));
-    let labels = h.labels.clone();
+    let labels = &f.categories;
     let mut chart = ChartBuilder::on(area)
         .margin(12)
         .x_label_area_size(28)
@@ -474,14 +327,14 @@ fn pairs(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
         .x_labels(2)
         .x_label_formatter(&|x| {
             if x.abs() < 1e-6 {
-                labels[0].clone()
+                labels.first().cloned().unwrap_or_default()
             } else if (x - 1.0).abs() < 1e-6 {
-                labels[1].clone()
+                labels.get(1).cloned().unwrap_or_default()
             } else {
                 String::new()
             }
         })
-        .y_desc(axis)
+        .y_desc(&f.value_axis)
         .light_line_style(WHITE)
         .draw()?;
     chart.draw_series(pts.iter().map(|p| {
@@ -500,7 +353,7 @@ fn pairs(area: &Area, h: &HypothesisResult, axis: &str) -> DrawResult {
     Ok(())
 }
 
-fn histogram(area: &Area, d: &PlotData, axis: &str) -> DrawResult {
+fn histogram(area: &Area, d: &PlotData, f: &FigureView) -> DrawResult {
     let edges = finite(&d.bin_edges);
     let valid = edges.len() == d.bin_counts.len() + 1 && !d.bin_counts.is_empty();
     let (lo, hi) = if valid {
@@ -517,8 +370,8 @@ fn histogram(area: &Area, d: &PlotData, axis: &str) -> DrawResult {
     chart
         .configure_mesh()
         .disable_x_mesh()
-        .x_desc(format!("difference in {axis}"))
-        .y_desc("units")
+        .x_desc(&f.value_axis)
+        .y_desc(&f.other_axis)
         .light_line_style(WHITE)
         .draw()?;
     if valid {

@@ -2,9 +2,11 @@
 //! (or the branch the `checked` rule takes), effect sizes, equivalence,
 //! robustness checks and figure data, gathered into the results model.
 //!
-//! This is where the plan's words meet the statistics engine; it computes
-//! nothing itself beyond choosing and collecting, and formats no text
-//! except the fixed method and effect names the results model records.
+//! This is where the plan meets the statistics engine. It chooses and
+//! collects: every number comes from `stats`, and everything the words and
+//! figures need (the branch the rule took, Q–Q positions, histogram bins,
+//! the mean's interval) is decided here, as typed fields of the model, so
+//! renderers only read. It formats no text.
 
 use crate::data::Selected;
 use crate::error::{Failure, Result};
@@ -12,6 +14,8 @@ use crate::plan::{Comparison, Design, Hypothesis, Method, Plan};
 use crate::results::*;
 use crate::stats::{self, describe, Alternative, StatsError};
 use rayon::prelude::*;
+
+pub mod planning;
 
 /// Figures draw at most this many points per set; larger sets are drawn
 /// from evenly spaced order statistics (so the quantiles stay exact).
@@ -128,8 +132,8 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
                 _ => vec![first.len()],
             };
             Some(PlanningOutcome {
-                planned: crate::planning::planned(h, p, plan.alpha)?,
-                sensitivity: crate::planning::sensitivity(h, p, plan.alpha, &achieved),
+                planned: crate::analysis::planning::planned(h, p, plan.alpha)?,
+                sensitivity: crate::analysis::planning::sensitivity(h, p, plan.alpha, &achieved),
                 achieved,
             })
         }
@@ -137,9 +141,9 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
     Ok(HypothesisResult {
         id: h.id.clone(),
         claim: h.claim.clone(),
-        design: h.design.as_str().into(),
-        method_planned: h.method.as_str().into(),
-        method: method.as_str().into(),
+        design: h.design,
+        method_planned: h.method,
+        method,
         alternative: h.alternative,
         outcome_label: h.label.clone().unwrap_or_else(|| outcome_name(h)),
         units: h.units.clone(),
@@ -156,11 +160,7 @@ pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisR
         p_method: test.p_method,
         estimate: test.estimate.clone(),
         effect: test.effects[0].clone(),
-        decision: if p < plan.alpha {
-            Decision::Reject
-        } else {
-            Decision::Retain
-        },
+        decision: Decision::at(p, plan.alpha),
         test,
         checks,
         robustness,
@@ -182,18 +182,22 @@ fn sort_values(v: &mut [f64]) {
     }
 }
 
-/// Applies the plan's multiplicity correction and the decisions.
-pub fn adjust_all(plan: &Plan, results: &mut [HypothesisResult]) {
+/// Applies the plan's multiplicity correction and the decisions, and
+/// returns the correction that applied: with a single hypothesis there is
+/// nothing to correct for, whatever the plan names.
+pub fn adjust_all(plan: &Plan, results: &mut [HypothesisResult]) -> Correction {
+    let applied = if results.len() < 2 {
+        Correction::None
+    } else {
+        plan.correction
+    };
     let ps: Vec<f64> = results.iter().map(|r| r.p).collect();
-    let adj = stats::multiplicity::adjust(&ps, plan.correction);
+    let adj = stats::multiplicity::adjust(&ps, applied);
     for (r, a) in results.iter_mut().zip(adj) {
         r.p_adjusted = a;
-        r.decision = if a < plan.alpha {
-            Decision::Reject
-        } else {
-            Decision::Retain
-        };
+        r.decision = Decision::at(a, plan.alpha);
     }
+    applied
 }
 
 fn outcome_name(h: &Hypothesis) -> String {
@@ -213,25 +217,11 @@ fn labels(h: &Hypothesis) -> [String; 2] {
 }
 
 fn summary(label: &str, x: &[f64], level: f64) -> std::result::Result<GroupSummary, StatsError> {
-    let d = describe::describe(x)?;
-    let mean_ci = d.se.filter(|se| *se > 0.0).map(|se| {
-        let q = stats::dist::t_quantile(0.5 + level / 2.0, (d.n - 1) as f64);
-        [d.mean - q * se, d.mean + q * se]
-    });
+    let describe = describe::describe(x)?;
     Ok(GroupSummary {
         label: label.to_string(),
-        n: d.n,
-        mean: d.mean,
-        sd: d.sd,
-        se: d.se,
-        median: d.median,
-        q1: d.q1,
-        q3: d.q3,
-        min: d.min,
-        max: d.max,
-        skewness: d.skewness,
-        excess_kurtosis: d.excess_kurtosis,
-        mean_ci,
+        mean_ci: describe::mean_interval(&describe, level),
+        describe,
     })
 }
 
@@ -279,13 +269,13 @@ fn normality(label: &str, x: &[f64], check_alpha: f64) -> NormalityCheck {
 }
 
 fn spread(
-    method: &str,
+    method: SpreadMethod,
     r: std::result::Result<stats::spread::SpreadTest, StatsError>,
     check_alpha: f64,
 ) -> SpreadCheck {
     match r {
         Ok(s) => SpreadCheck {
-            method: method.into(),
+            method,
             f: Some(s.f),
             df1: Some(s.df1),
             df2: Some(s.df2),
@@ -294,7 +284,7 @@ fn spread(
             not_run: None,
         },
         Err(e) => SpreadCheck {
-            method: method.into(),
+            method,
             f: None,
             df1: None,
             df2: None,
@@ -333,7 +323,10 @@ fn checks(
             );
             (
                 vec![n1, n2],
-                vec![spread("brown-forsythe", bf, a), spread("levene", lev, a)],
+                vec![
+                    spread(SpreadMethod::BrownForsythe, bf, a),
+                    spread(SpreadMethod::Levene, lev, a),
+                ],
             )
         }
         Design::Paired | Design::OneSample => {
@@ -387,9 +380,9 @@ fn choose(planned: Method, design: Design, c: &Checks) -> Method {
     }
 }
 
-fn effect(name: &str, e: &stats::effect::Effect) -> EffectSize {
+fn effect(name: EffectKind, e: &stats::effect::Effect) -> EffectSize {
     EffectSize {
-        name: name.into(),
+        name,
         value: e.value,
         ci_low: e.interval.low,
         ci_high: e.interval.high,
@@ -424,15 +417,15 @@ fn run_method(
         wilcoxon::wilcoxon_signed_rank,
     };
     let t_result = |name: Method, t: tt::TTest, effects: Vec<EffectSize>| TestResult {
-        method: name.as_str().into(),
-        statistic_name: "t".into(),
+        method: name,
+        statistic_name: StatisticKind::T,
         statistic: t.t,
         df: Some(t.df),
         z: None,
         p: t.p,
         p_method: None,
         estimate: Estimate {
-            name: "mean difference".into(),
+            name: EstimateKind::MeanDifference,
             value: t.estimate,
             ci_low: t.interval.low,
             ci_high: t.interval.high,
@@ -441,31 +434,31 @@ fn run_method(
         effects,
         zeros_dropped: None,
     };
-    let rank_result = |name: Method, r: rk::RankTest, stat: &str, est: &str| {
+    let rank_result = |name: Method, r: rk::RankTest, stat: StatisticKind, est: EstimateKind| {
         let mut effects = vec![EffectSize {
-            name: "rank-biserial".into(),
+            name: EffectKind::RankBiserial,
             value: r.rank_biserial,
             ci_low: r.rank_biserial_interval.low,
             ci_high: r.rank_biserial_interval.high,
         }];
         if let Some(ps) = r.prob_superiority {
             effects.push(EffectSize {
-                name: "probability-of-superiority".into(),
+                name: EffectKind::ProbabilityOfSuperiority,
                 value: ps,
                 ci_low: None,
                 ci_high: None,
             });
         }
         TestResult {
-            method: name.as_str().into(),
-            statistic_name: stat.into(),
+            method: name,
+            statistic_name: stat,
             statistic: r.statistic,
             df: None,
             z: r.z,
             p: r.p,
             p_method: Some(r.p_method),
             estimate: Estimate {
-                name: est.into(),
+                name: est,
                 value: r.estimate,
                 ci_low: r.interval.low,
                 ci_high: r.interval.high,
@@ -487,18 +480,25 @@ fn run_method(
                 .get_or_init(|| fx::cohens_d(first, second, alt, level))
                 .clone()?;
             let g = fx::hedges_from_d(&d, first.len() + second.len())?;
-            t_result(m, t, vec![effect("cohen-d", &d), effect("hedges-g", &g)])
+            t_result(
+                m,
+                t,
+                vec![
+                    effect(EffectKind::CohenD, &d),
+                    effect(EffectKind::HedgesG, &g),
+                ],
+            )
         }
         Method::PairedT | Method::OneSampleT => {
             let t = tt::one_sample_t(diffs, reference, alt, level)?;
             let dz = fx::d_z(diffs, reference, alt, level)?;
-            t_result(m, t, vec![effect("d-z", &dz)])
+            t_result(m, t, vec![effect(EffectKind::DZ, &dz)])
         }
         Method::MannWhitney => rank_result(
             m,
             mann_whitney(first, second, alt, level)?,
-            "U",
-            "Hodges–Lehmann shift",
+            StatisticKind::U,
+            EstimateKind::HodgesLehmannShift,
         ),
         Method::WilcoxonSignedRank => {
             let shifted: Vec<f64> = diffs.iter().map(|d| d - reference).collect();
@@ -506,7 +506,12 @@ fn run_method(
             r.estimate += reference;
             r.interval.low = r.interval.low.map(|v| v + reference);
             r.interval.high = r.interval.high.map(|v| v + reference);
-            rank_result(m, r, "W+", "Hodges–Lehmann estimate")
+            rank_result(
+                m,
+                r,
+                StatisticKind::WPlus,
+                EstimateKind::HodgesLehmannEstimate,
+            )
         }
         Method::Checked => {
             return Err(StatsError::BadParameter(
@@ -534,28 +539,17 @@ fn equivalence(
         }
         _ => eq::tost_one_sample(diffs, reference, low, high, alpha)?,
     };
-    Ok(EquivalenceResult {
-        low,
-        high,
-        t_lower: t.t_lower,
-        t_upper: t.t_upper,
-        df: t.df,
-        p_lower: t.p_lower,
-        p_upper: t.p_upper,
-        p: t.p,
-        ci_low: t.interval.low.unwrap_or(f64::NEG_INFINITY),
-        ci_high: t.interval.high.unwrap_or(f64::INFINITY),
-        ci_level: 1.0 - 2.0 * alpha,
-    })
+    Ok(EquivalenceResult::from_tost(&t, alpha))
 }
 
 /// Figure data: every value up to [`PLOT_POINTS`], otherwise evenly spaced
-/// order statistics; a histogram over all values either way.
+/// order statistics; a histogram over all values either way, and the
+/// normal Q–Q positions of the points drawn. The points are sorted.
 pub fn plot_set(label: &str, x: &[f64]) -> PlotData {
     let sorted = stats::sorted(x);
     let n = sorted.len();
     let (points, sampled) = if n <= PLOT_POINTS {
-        (x.to_vec(), false)
+        (sorted.to_vec(), false)
     } else {
         let step = (n - 1) as f64 / (PLOT_POINTS - 1) as f64;
         (
@@ -566,13 +560,38 @@ pub fn plot_set(label: &str, x: &[f64]) -> PlotData {
         )
     };
     let (bin_edges, bin_counts) = histogram(&sorted, PLOT_BINS);
+    let qq = qq_data(&points);
     PlotData {
         label: label.into(),
         points,
         sampled,
         bin_edges,
         bin_counts,
+        qq,
     }
+}
+
+/// Normal quantiles at the plotting positions (i + ½)/n of sorted points,
+/// and the line through their type-7 quartiles (common practice).
+fn qq_data(sorted: &[f64]) -> QqData {
+    use stats::dist::normal_quantile;
+    let n = sorted.len();
+    let theoretical = (0..n)
+        .map(|i| normal_quantile((i as f64 + 0.5) / n as f64))
+        .collect();
+    let line = (n >= 2).then(|| {
+        let (z1, z3) = (normal_quantile(0.25), normal_quantile(0.75));
+        let (q1, q3) = (
+            describe::quantile_sorted(sorted, 0.25),
+            describe::quantile_sorted(sorted, 0.75),
+        );
+        let slope = (q3 - q1) / (z3 - z1);
+        QqLine {
+            intercept: q1 - slope * z1,
+            slope,
+        }
+    });
+    QqData { theoretical, line }
 }
 
 fn histogram(sorted: &[f64], bins: usize) -> (Vec<f64>, Vec<u64>) {

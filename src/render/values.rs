@@ -15,8 +15,8 @@
 //! emphasis into `\textit{}` and escaping everything else.
 
 use crate::error::{Failure, Result};
-use crate::render::{apa, sentence};
-use crate::results::{HypothesisResult, Results};
+use crate::render::view::{apa, sentence};
+use crate::results::{HypothesisResult, Method, Results, StatisticKind};
 use pulldown_cmark::{Event, Parser, Tag, TagEnd};
 use std::collections::BTreeMap;
 
@@ -156,13 +156,26 @@ pub fn markdown_to_latex(md: &str) -> String {
     s
 }
 
+/// The named-values renderer: `values.tex` and `values.json`.
+pub(crate) struct NamedValues;
+
+impl super::Renderer for NamedValues {
+    fn render(&self, cx: &super::Context, _done: &[super::Output]) -> Result<Vec<super::Output>> {
+        let v = from_results(cx.results)?;
+        Ok(vec![
+            super::Output::new("values.tex", v.to_tex(&cx.results.plan.title)),
+            super::Output::new("values.json", v.to_json()),
+        ])
+    }
+}
+
 /// Builds the named values of a run from its results.
 pub fn from_results(r: &Results) -> Result<Values> {
     let stem = r
         .analysis_file
         .strip_suffix(".toml")
         .unwrap_or(&r.analysis_file);
-    let correction = sentence::applied_correction(r);
+    let correction = r.correction_applied;
     let conf = r.plan.confidence;
     let mut v = Values::default();
     for h in &r.hypotheses {
@@ -187,13 +200,13 @@ pub fn from_results(r: &Results) -> Result<Values> {
         for g in &h.groups {
             add(
                 &format!("N {}", g.label),
-                format!("{} = {}", apa::sym("n"), g.n),
+                format!("{} = {}", apa::sym("n"), g.describe.n),
             )?;
             add(
                 &format!("Mean {}", g.label),
-                format!("{} = {}", apa::sym("M"), apa::two(g.mean)),
+                format!("{} = {}", apa::sym("M"), apa::two(g.describe.mean)),
             )?;
-            if let Some(sd) = g.sd {
+            if let Some(sd) = g.describe.sd {
                 add(
                     &format!("SD {}", g.label),
                     format!("{} = {}", apa::sym("SD"), apa::two(sd)),
@@ -218,16 +231,18 @@ fn bare_statistic(h: &HypothesisResult) -> String {
         return format!(
             "{}({}) = {}",
             apa::sym("t"),
-            apa::df(eq.df, t.method == "welch-t"),
+            apa::df(eq.df, t.method == Method::WelchT),
             apa::two(deciding)
         );
     }
-    match t.statistic_name.as_str() {
-        "U" => format!("{} = {}", apa::sym("U"), apa::rank_statistic(t.statistic)),
-        "W+" => format!("{}+ = {}", apa::sym("W"), apa::rank_statistic(t.statistic)),
-        _ => {
+    match t.statistic_name {
+        StatisticKind::U => format!("{} = {}", apa::sym("U"), apa::rank_statistic(t.statistic)),
+        StatisticKind::WPlus => {
+            format!("{}+ = {}", apa::sym("W"), apa::rank_statistic(t.statistic))
+        }
+        StatisticKind::T => {
             let df =
-                t.df.map(|d| format!("({})", apa::df(d, t.method == "welch-t")))
+                t.df.map(|d| format!("({})", apa::df(d, t.method == Method::WelchT)))
                     .unwrap_or_default();
             format!("{}{df} = {}", apa::sym("t"), apa::two(t.statistic))
         }

@@ -1,22 +1,38 @@
-//! The report's context: every number already worded, every plan text
-//! either escaped or left for the template's auto-escaping.
+//! The view: the typed results model turned into the words and numbers a
+//! reader sees, once, for every output format.
 //!
-//! The template decides the layout; this module decides the words. One
-//! context feeds `report.md.j2`; the HTML is that Markdown converted.
+//! Everything a report says is decided here (with the APA number rules in
+//! [`apa`], the sentences in [`sentence`] and the sample-size words in
+//! [`planning`]); nothing here computes a statistic. Templates own the
+//! layout and the table syntax: the view hands them cells, never rows.
+//! Text from the plan (labels, claims, reasons) is either escaped here,
+//! where it is mixed into Markdown the view wrote, or left for the
+//! template's auto-escaping. Every renderer (Markdown, HTML, SVG, named
+//! values) is fed the same [`ReportView`] next to the raw model.
 
-use super::apa::{self, sym, two};
-use super::figures::{self, Figure};
+pub mod apa;
+pub mod planning;
+pub mod sentence;
+
+use self::apa::{sym, two};
+use self::sentence::method_name;
 use super::markdown::escape;
-use super::sentence::{self, method_name};
-use super::{md, page, render_template, Rendered};
-use crate::error::Result;
-use crate::results::{Branch, Decision, HypothesisResult, LockState, Results};
-use minijinja::{Environment, Value};
+use crate::results::{
+    Branch, Decision, Design, HypothesisResult, LockState, Method, Results, SpreadMethod,
+};
+use crate::stats::PMethod;
+use minijinja::Value;
 use serde::Serialize;
 use std::collections::BTreeMap;
 
+/// Markdown the view wrote itself: inserted into templates as it is.
+pub(crate) fn md(s: impl Into<String>) -> Value {
+    Value::from_safe_string(s.into())
+}
+
+/// One row of the "At a glance" table, as cells.
 #[derive(Serialize)]
-struct GlanceRow {
+pub(crate) struct GlanceRow {
     id: String,
     claim: String,
     method: Value,
@@ -26,95 +42,178 @@ struct GlanceRow {
     verdict: String,
 }
 
+/// Everything said about one hypothesis.
 #[derive(Serialize)]
-struct Hyp {
+pub(crate) struct HypothesisView {
     id: String,
     claim: String,
-    descriptives: Vec<Value>,
+    /// The descriptives table: one list of cells per set.
+    descriptives: Vec<Vec<Value>>,
     checks: Vec<Value>,
     rule: Value,
     test: Vec<Value>,
     size: Vec<Value>,
     planning: Option<Value>,
     sentence: Value,
+    /// The robustness table: one list of cells per method.
     robustness: Vec<Vec<Value>>,
-    figures: BTreeMap<String, FigureCtx>,
+    /// The figures, by where the report places them.
+    figures: BTreeMap<FigureRole, FigureView>,
+    /// The rows-in-rows-out table: one list of cells per step.
     rows: Vec<Vec<Value>>,
     row_groups: [String; 2],
 }
 
-#[derive(Serialize)]
-struct FigureCtx {
-    number: usize,
-    file: String,
-    title: String,
-    alt: String,
-    note: String,
+/// Where a figure sits in the report, and which drawing it is.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub(crate) enum FigureRole {
+    /// Each group's values (independent, one-sample).
+    Groups,
+    /// Each unit, before and after (paired).
+    Pairs,
+    /// Normal Q–Q plots.
+    Qq,
+    /// The histogram of paired differences.
+    Differences,
+    /// The estimate and its interval.
+    Difference,
 }
 
-/// Renders the report.
-pub(super) fn render(r: &Results, env: &Environment<'static>) -> Result<Rendered> {
-    let mut all_figures: Vec<Figure> = Vec::new();
+impl FigureRole {
+    /// The file-name suffix and report key.
+    pub(crate) fn as_str(self) -> &'static str {
+        match self {
+            FigureRole::Groups => "groups",
+            FigureRole::Pairs => "pairs",
+            FigureRole::Qq => "qq",
+            FigureRole::Differences => "differences",
+            FigureRole::Difference => "difference",
+        }
+    }
+}
+
+/// The words of one figure: what the SVG renderer writes into it and what
+/// the report says around it.
+#[derive(Clone, Debug, Serialize)]
+pub(crate) struct FigureView {
+    /// Index of the hypothesis in the results.
+    #[serde(skip)]
+    pub hypothesis: usize,
+    /// Which drawing.
+    #[serde(skip)]
+    pub role: FigureRole,
+    /// Figure number in the report.
+    pub number: usize,
+    /// File name, e.g. `figures/h1-groups.svg`.
+    pub file: String,
+    /// Element id stem inside the SVG, e.g. `h1-groups`.
+    #[serde(skip)]
+    pub id: String,
+    /// The question it answers (the figure title).
+    pub title: String,
+    /// Short alternative text.
+    pub alt: String,
+    /// What is drawn (the figure note and the SVG's `<desc>`).
+    pub note: String,
+    /// Title of the value axis (plain text).
+    #[serde(skip)]
+    pub value_axis: String,
+    /// Title of the other axis where it has one: the normal quantiles of a
+    /// Q–Q plot, the counts of a histogram (plain text).
+    #[serde(skip)]
+    pub other_axis: String,
+    /// Labels of the categories or panels drawn, in order (plain text).
+    #[serde(skip)]
+    pub categories: Vec<String>,
+}
+
+/// The whole report, worded.
+#[derive(Serialize)]
+pub(crate) struct ReportView {
+    title: String,
+    status: Value,
+    changes: Vec<Vec<String>>,
+    deviations: Vec<Vec<String>>,
+    lock_state: LockState,
+    p_header: Value,
+    glance: Vec<GlanceRow>,
+    hypotheses: Vec<HypothesisView>,
+    data_notes: Vec<Value>,
+    provenance: Vec<Value>,
+    command: Value,
+    /// Every figure, in report order.
+    #[serde(skip)]
+    pub figures: Vec<FigureView>,
+    /// Provenance as machine-readable `<meta>` tags of the HTML report.
+    #[serde(skip)]
+    pub meta: Vec<(&'static str, String)>,
+}
+
+/// Words the whole report.
+pub(crate) fn report(r: &Results) -> ReportView {
+    let mut all_figures: Vec<FigureView> = Vec::new();
     let mut hyps = Vec::new();
     let mut used_stems = Vec::new();
     for (i, h) in r.hypotheses.iter().enumerate() {
-        let stem = figures::stem(&h.id, i, &used_stems);
+        let stem = stem(&h.id, i, &used_stems);
         used_stems.push(stem.clone());
-        let figs = figures::for_hypothesis(h, &stem);
         let mut fctx = BTreeMap::new();
-        for f in figs {
+        for mut f in figures(h, i, &stem) {
+            f.number = all_figures.len() + 1;
+            fctx.insert(f.role, f.clone());
             all_figures.push(f);
-            let f = all_figures.last().expect("just pushed");
-            fctx.insert(
-                f.role.to_string(),
-                FigureCtx {
-                    number: all_figures.len(),
-                    file: f.file.clone(),
-                    title: f.title.clone(),
-                    alt: f.alt.clone(),
-                    note: f.desc.clone(),
-                },
-            );
         }
         hyps.push(hypothesis(r, h, fctx));
     }
-    let glance: Vec<GlanceRow> = r.hypotheses.iter().map(|h| glance(r, h)).collect();
-    let p_header = match sentence::correction_name(sentence::applied_correction(r)) {
+    let p_header = match sentence::correction_name(r.correction_applied) {
         Some(c) => format!("p ({c})"),
         None => "p".into(),
     };
-    let ctx = minijinja::context! {
-        title => r.plan.title.clone(),
-        status => md(status(r)),
-        changes => r.changes.iter().map(|c| vec![c.field.clone(), c.locked.clone(), c.current.clone()]).collect::<Vec<_>>(),
-        deviations => r.deviations.iter().map(|d| vec![d.date.clone(), d.change.clone(), d.reason.clone()]).collect::<Vec<_>>(),
-        lock_state => match r.lock { LockState::AsLocked => "as-locked", LockState::Deviates => "deviates", LockState::Unlocked => "unlocked" },
-        p_header => md(p_header),
-        glance => Value::from_serialize(&glance),
-        hypotheses => Value::from_serialize(&hyps),
-        data => Value::from_serialize(&r.data),
-        data_notes => data_notes(r).into_iter().map(md).collect::<Vec<_>>(),
-        provenance => provenance(r),
-        command => md(code_block(&r.command)),
-    };
-    let report_md = render_template(env, "report.md.j2", ctx)?;
-    let svgs: BTreeMap<String, String> = all_figures
-        .iter()
-        .map(|f| (f.file.clone(), f.svg.clone()))
+    ReportView {
+        title: r.plan.title.clone(),
+        status: md(status(r)),
+        changes: r
+            .changes
+            .iter()
+            .map(|c| vec![c.field.clone(), c.locked.clone(), c.current.clone()])
+            .collect(),
+        deviations: r
+            .deviations
+            .iter()
+            .map(|d| vec![d.date.clone(), d.change.clone(), d.reason.clone()])
+            .collect(),
+        lock_state: r.lock,
+        p_header: md(p_header),
+        glance: r.hypotheses.iter().map(|h| glance(r, h)).collect(),
+        hypotheses: hyps,
+        data_notes: data_notes(r).into_iter().map(md).collect(),
+        provenance: provenance(r),
+        command: md(code_block(&r.command)),
+        figures: all_figures,
+        meta: provenance_meta(r),
+    }
+}
+
+/// A file-name stem for a hypothesis id: lowercase letters, digits and
+/// dashes; `h<n>` when nothing is left or the stem is taken.
+pub(crate) fn stem(id: &str, index: usize, used: &[String]) -> String {
+    let s: String = id
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() {
+                c.to_ascii_lowercase()
+            } else {
+                '-'
+            }
+        })
         .collect();
-    let report_html = page(
-        env,
-        "report.html.j2",
-        &r.plan.title,
-        &report_md,
-        &svgs,
-        &provenance_meta(r),
-    )?;
-    Ok(Rendered {
-        report_md,
-        report_html,
-        figures: all_figures.into_iter().map(|f| (f.file, f.svg)).collect(),
-    })
+    let s = s.trim_matches('-').to_string();
+    if s.is_empty() || used.contains(&s) {
+        format!("h{}", index + 1)
+    } else {
+        s
+    }
 }
 
 fn date_of(t: &str) -> &str {
@@ -179,7 +278,8 @@ fn data_notes(r: &Results) -> Vec<String> {
     notes
 }
 
-fn verdict(h: &HypothesisResult) -> &'static str {
+/// The verdict in words, as every output states it.
+pub(crate) fn verdict(h: &HypothesisResult) -> &'static str {
     match (h.equivalence.is_some(), h.decision) {
         (true, Decision::Reject) => "equivalent within the bounds",
         (true, Decision::Retain) => "not shown equivalent",
@@ -198,11 +298,9 @@ fn units(h: &HypothesisResult) -> String {
 fn glance(r: &Results, h: &HypothesisResult) -> GlanceRow {
     let e = &h.estimate;
     let fx = &h.effect;
-    let effect = sentence::effect(fx, e.confidence);
-    let p = if sentence::applied_correction(r) == crate::stats::multiplicity::Correction::None {
-        h.p
-    } else {
-        h.p_adjusted
+    let p = match r.correction_applied {
+        crate::results::Correction::None => h.p,
+        _ => h.p_adjusted,
     };
     let p = match &h.equivalence {
         Some(eq) => format!("{} (equivalence)", apa::p_number(eq.p)),
@@ -211,40 +309,38 @@ fn glance(r: &Results, h: &HypothesisResult) -> GlanceRow {
     GlanceRow {
         id: h.id.clone(),
         claim: h.claim.clone(),
-        method: md(method_name(&h.method)),
+        method: md(method_name(h.method)),
         difference: md(format!(
             "{}{} {}",
             two(e.value),
             units(h),
             apa::bounds(e.ci_low, e.ci_high, two)
         )),
-        effect: md(effect.replace(", 95% CI", "").replacen(
-            &format!(", {} CI", apa::level(e.confidence)),
-            "",
-            1,
-        )),
+        effect: md(sentence::effect_with_bounds(fx)),
         p: md(p),
         verdict: verdict(h).into(),
     }
 }
 
-fn hypothesis(r: &Results, h: &HypothesisResult, figures: BTreeMap<String, FigureCtx>) -> Hyp {
+fn hypothesis(
+    r: &Results,
+    h: &HypothesisResult,
+    figures: BTreeMap<FigureRole, FigureView>,
+) -> HypothesisView {
     let descriptives = h
         .groups
         .iter()
         .map(|g| {
-            md(format!(
-                "| {} | {} | {} | {} | {} | {} to {} | {} to {} |",
-                escape(&g.label),
-                g.n,
-                two(g.mean),
-                g.sd.map(two).unwrap_or_else(|| "—".into()),
-                two(g.median),
-                two(g.q1),
-                two(g.q3),
-                two(g.min),
-                two(g.max)
-            ))
+            let d = &g.describe;
+            vec![
+                md(escape(&g.label)),
+                md(d.n.to_string()),
+                md(two(d.mean)),
+                md(d.sd.map(two).unwrap_or_else(|| "—".into())),
+                md(two(d.median)),
+                md(format!("{} to {}", two(d.q1), two(d.q3))),
+                md(format!("{} to {}", two(d.min), two(d.max))),
+            ]
         })
         .collect();
     let robustness = h
@@ -252,7 +348,7 @@ fn hypothesis(r: &Results, h: &HypothesisResult, figures: BTreeMap<String, Figur
         .iter()
         .map(|t| {
             vec![
-                md(method_name(&t.method)),
+                md(method_name(t.method)),
                 md(sentence::statistic(t)),
                 md(apa::p_number(t.p)),
                 md(format!(
@@ -268,7 +364,7 @@ fn hypothesis(r: &Results, h: &HypothesisResult, figures: BTreeMap<String, Figur
             ]
         })
         .collect();
-    Hyp {
+    HypothesisView {
         id: h.id.clone(),
         claim: h.claim.clone(),
         descriptives,
@@ -280,7 +376,7 @@ fn hypothesis(r: &Results, h: &HypothesisResult, figures: BTreeMap<String, Figur
             .planning
             .as_ref()
             .map(|p| md(planning_paragraph(h, p, r.plan.alpha))),
-        sentence: md(sentence::one_sentence(h, sentence::applied_correction(r))),
+        sentence: md(sentence::one_sentence(h, r.correction_applied)),
         robustness,
         figures,
         rows: rows(h),
@@ -308,18 +404,16 @@ fn checks(h: &HypothesisResult) -> Vec<Value> {
                 _ => format!("{}: not run", escape(&n.label)),
             })
             .collect();
-        let whose = if h.design == "independent" {
-            "each group"
-        } else {
-            "the differences"
+        let whose = match h.design {
+            Design::Independent => "each group",
+            Design::Paired | Design::OneSample => "the differences",
         };
         out.push(md(format!("Shapiro–Wilk, {whose}: {}.", parts.join("; "))));
     }
     for s in &c.spread {
-        let name = match s.method.as_str() {
-            "brown-forsythe" => "Brown–Forsythe (spread around the medians)",
-            "levene" => "Levene (spread around the means)",
-            other => other,
+        let name = match s.method {
+            SpreadMethod::BrownForsythe => "Brown–Forsythe (spread around the medians)",
+            SpreadMethod::Levene => "Levene (spread around the means)",
         };
         let body = match (s.f, s.df1, s.df2, s.p, &s.not_run) {
             (Some(f), Some(d1), Some(d2), Some(p), _) => format!(
@@ -333,30 +427,32 @@ fn checks(h: &HypothesisResult) -> Vec<Value> {
             (_, _, _, _, Some(why)) => format!("not run ({})", escape(why)),
             _ => "not run".into(),
         };
-        out.push(md(format!("{}: {body}.", escape(name))));
+        out.push(md(format!("{name}: {body}.")));
     }
     out
 }
 
 fn rule(r: &Results, h: &HypothesisResult) -> String {
-    let chosen = method_name(&h.method);
+    let chosen = method_name(h.method);
     let alpha = apa::bounded(h.checks.check_alpha, 2);
     let tail = if r.lock == LockState::Unlocked {
         ""
     } else {
         ", as preregistered"
     };
-    let both = if h.design == "independent" {
-        "in both groups"
-    } else {
-        "for the differences"
+    let both = match h.design {
+        Design::Independent => "in both groups",
+        Design::Paired | Design::OneSample => "for the differences",
     };
     match h.checks.branch {
         None => format!(
             "The plan fixed the method ({chosen}); the checks are shown for information and changed nothing."
         ),
         Some(Branch::NormalEqualSpread) => {
-            let spread = if h.design == "independent" { ", and the spread did not differ" } else { "" };
+            let spread = match h.design {
+                Design::Independent => ", and the spread did not differ",
+                Design::Paired | Design::OneSample => "",
+            };
             format!("Judged at α = {alpha}: normality held {both}{spread} → {chosen}{tail}.")
         }
         Some(Branch::NormalUnequalSpread) => {
@@ -373,7 +469,7 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
     let planned = if h.method_planned == h.method {
         String::new()
     } else {
-        format!(" (planned: {})", method_name(&h.method_planned))
+        format!(" (planned: {})", method_name(h.method_planned))
     };
     let test_line = match &h.equivalence {
         // The verdict rests on the two one-sided tests below; the ordinary
@@ -386,19 +482,17 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
         None => format!(
             "{}, {}.",
             sentence::statistic(&h.test),
-            sentence::p_of(h, sentence::applied_correction(r))
+            sentence::p_of(h, r.correction_applied)
         ),
     };
     let mut out = vec![
-        md(format!("Method used: {}{planned}.", method_name(&h.method))),
+        md(format!("Method used: {}{planned}.", method_name(h.method))),
         md(test_line),
     ];
     if let Some(pm) = h.p_method {
         let how = match pm {
-            crate::stats::PMethod::Exact => {
-                "is exact, from the permutation distribution of the statistic"
-            }
-            crate::stats::PMethod::NormalApproximation => {
+            PMethod::Exact => "is exact, from the permutation distribution of the statistic",
+            PMethod::NormalApproximation => {
                 "is from the normal approximation, corrected for ties and continuity"
             }
         };
@@ -409,7 +503,7 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
             "{z} zero difference(s) were dropped before ranking."
         )));
     }
-    if let Some(name) = sentence::correction_method(sentence::applied_correction(r)) {
+    if let Some(name) = sentence::correction_method(r.correction_applied) {
         out.push(md(format!(
             "Unadjusted {}; adjusted across the {} hypotheses of this plan ({name}).",
             apa::p_clause(h.p),
@@ -420,8 +514,8 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
         out.push(md(format!(
             "Equivalence (two one-sided tests, bounds {} to {}{}): against the lower bound {}({}) = {}, {}; against the upper bound {}({}) = {}, {}; the equivalence {} is the larger of the two, {}.",
             two(eq.low), two(eq.high), units(h),
-            sym("t"), apa::df(eq.df, h.method == "welch-t"), two(eq.t_lower), apa::p_clause(eq.p_lower),
-            sym("t"), apa::df(eq.df, h.method == "welch-t"), two(eq.t_upper), apa::p_clause(eq.p_upper),
+            sym("t"), apa::df(eq.df, h.method == Method::WelchT), two(eq.t_lower), apa::p_clause(eq.p_lower),
+            sym("t"), apa::df(eq.df, h.method == Method::WelchT), two(eq.t_upper), apa::p_clause(eq.p_upper),
             sym("p"), apa::p_number(eq.p),
         )));
     }
@@ -473,7 +567,7 @@ fn rows(h: &HypothesisResult) -> Vec<Vec<Value>> {
         ]);
     }
     out.push(vec![md("Missing values"), n(f.missing[0]), n(f.missing[1])]);
-    if h.design == "paired" {
+    if h.design == Design::Paired {
         out.push(vec![
             md(format!(
                 "Dropped: the other measurement of the unit was missing or excluded ({} incomplete pairs)",
@@ -536,7 +630,7 @@ fn planning_paragraph(
     p: &crate::results::PlanningOutcome,
     alpha: f64,
 ) -> String {
-    let planned = super::planning::planned_sentence(&p.planned, &h.design, alpha, h.alternative);
+    let planned = planning::planned_sentence(&p.planned, h.design, alpha, h.alternative);
     let achieved = match p.achieved.as_slice() {
         [a, b] => format!("{a} and {b}"),
         [a] => a.to_string(),
@@ -552,7 +646,7 @@ fn planning_paragraph(
     let mut s =
         format!("Sample size. The plan said: {planned} Planned {planned_n}; analysed {achieved}.");
     if let Some(d) = p.sensitivity {
-        let sym = if h.design == "paired" { "*d_z*" } else { "*d*" };
+        let sym = planning::effect_symbol(h.design);
         s.push_str(&format!(
             " With the sample analysed, the smallest effect the t-test detects with {} power is {sym} = {}.",
             apa::level(p.planned.power_target),
@@ -583,4 +677,139 @@ fn provenance_meta(r: &Results) -> Vec<(&'static str, String)> {
     m.push(("attest-data-sha256", r.data.sha256.clone()));
     m.push(("attest-command", r.command.clone()));
     m
+}
+
+/// The figures of one hypothesis, in the order the report shows them,
+/// with every word drawn in them or said around them.
+fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
+    let mut out = Vec::new();
+    let sampled =
+        h.plot.iter().any(|p| p.sampled) || h.paired_plot.as_ref().is_some_and(|p| p.sampled);
+    let sample_note = if sampled {
+        " The points are an evenly spaced sample of the sorted values, not every value."
+    } else {
+        ""
+    };
+    let unit = h
+        .units
+        .as_deref()
+        .map(|u| format!(" ({u})"))
+        .unwrap_or_default();
+    let axis = format!("{}{unit}", h.outcome_label);
+    let [a, b] = &h.labels;
+    let set_labels: Vec<String> = h.plot.iter().map(|p| p.label.clone()).collect();
+    let figure = |role: FigureRole,
+                  title: &str,
+                  note: String,
+                  value_axis: String,
+                  other_axis: &str,
+                  categories: Vec<String>| {
+        let id = format!("{stem}-{}", role.as_str());
+        FigureView {
+            hypothesis: index,
+            role,
+            number: 0,
+            file: format!("figures/{id}.svg"),
+            alt: format!("{title}: {}", note.split(". ").next().unwrap_or("")),
+            id,
+            title: title.into(),
+            note,
+            value_axis,
+            other_axis: other_axis.into(),
+            categories,
+        }
+    };
+    match h.design {
+        Design::Paired => {
+            if let Some(pp) = &h.paired_plot {
+                let note = format!(
+                    "Each line joins one unit's value in {a} (left) to its value in {b} (right).{}",
+                    if pp.sampled {
+                        " The lines are a sample of all units."
+                    } else {
+                        ""
+                    }
+                );
+                out.push(figure(
+                    FigureRole::Pairs,
+                    "Each unit, before and after",
+                    note,
+                    axis.clone(),
+                    "",
+                    vec![a.clone(), b.clone()],
+                ));
+            }
+        }
+        Design::Independent | Design::OneSample => {
+            let reference = match h.design {
+                Design::OneSample => " The dashed line marks the reference value.",
+                _ => "",
+            };
+            let note = format!(
+                "Each dot is one value, spread sideways only to avoid overlap. The box spans the quartiles with the median as a line; the whiskers reach the smallest and largest values.{reference}{sample_note}"
+            );
+            out.push(figure(
+                FigureRole::Groups,
+                "Each group's values",
+                note,
+                axis.clone(),
+                "",
+                set_labels.clone(),
+            ));
+        }
+    }
+    if !h.plot.is_empty() {
+        let note = format!(
+            "Sample values against the values a normal distribution would give at the same ranks; points near the line mean the shape is close to normal. The line runs through the quartiles.{sample_note}"
+        );
+        let title = match h.design {
+            Design::Paired => "Normal Q–Q, the differences",
+            Design::Independent | Design::OneSample => "Normal Q–Q, each group",
+        };
+        out.push(figure(
+            FigureRole::Qq,
+            title,
+            note,
+            String::new(),
+            "normal quantile",
+            set_labels,
+        ));
+    }
+    if h.design == Design::Paired && !h.plot.is_empty() {
+        let note = format!(
+            "How often each size of difference ({a} − {b}) occurred, over all analysed units; the dashed line marks zero."
+        );
+        out.push(figure(
+            FigureRole::Differences,
+            "Each unit's difference",
+            note,
+            format!("difference in {axis}"),
+            "units",
+            Vec::new(),
+        ));
+    }
+    let e = &h.estimate;
+    let open = match h.alternative {
+        crate::stats::Alternative::TwoSided => "",
+        _ => " The interval is one-sided: its open side runs to the edge of the plot, marked by an arrow.",
+    };
+    let eq = if h.equivalence.is_some() {
+        " Dotted lines mark the equivalence bounds."
+    } else {
+        ""
+    };
+    let name = sentence::estimate_name(e.name);
+    let note = format!(
+        "The {name} (dot) with its {:.0}% confidence interval (bar); the dashed line marks no difference.{open}{eq}",
+        e.confidence * 100.0
+    );
+    out.push(figure(
+        FigureRole::Difference,
+        "The difference and its interval",
+        note,
+        format!("{name}{unit}, {a} − {b}"),
+        "",
+        Vec::new(),
+    ));
+    out
 }

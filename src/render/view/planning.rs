@@ -2,7 +2,8 @@
 //! the report and `attest power` print for a planned size.
 
 use super::apa;
-use crate::planning::{Answer, Planned, Solved};
+use crate::analysis::planning::{Answer, Planned, Solved};
+use crate::plan::Design;
 use crate::stats::Alternative;
 
 fn sided(alt: Alternative) -> &'static str {
@@ -12,21 +13,21 @@ fn sided(alt: Alternative) -> &'static str {
     }
 }
 
-fn per_group(n: &[usize], design: &str) -> String {
+fn per_group(n: &[usize], design: Design) -> String {
     match (n, design) {
         ([a, b], _) if a == b => format!("{a} per group"),
         ([a, b], _) => format!("{a} in the first group and {b} in the second"),
-        ([a], "paired") => format!("{a} pairs"),
+        ([a], Design::Paired) => format!("{a} pairs"),
         ([a], _) => format!("{a} observations"),
         _ => String::new(),
     }
 }
 
-fn effect_symbol(design: &str) -> &'static str {
-    if design == "paired" {
-        "*d_z*"
-    } else {
-        "*d*"
+/// The standardised effect a sample-size plan is stated in.
+pub fn effect_symbol(design: Design) -> &'static str {
+    match design {
+        Design::Paired => "*d_z*",
+        Design::Independent | Design::OneSample => "*d*",
     }
 }
 
@@ -36,7 +37,7 @@ fn pct(p: f64) -> String {
 
 /// "To detect *d* = 0.40 with 90% power at α = .05, one-sided, 108 per
 /// group are needed (exact power .902)."
-pub fn planned_sentence(p: &Planned, design: &str, alpha: f64, alt: Alternative) -> String {
+pub fn planned_sentence(p: &Planned, design: Design, alpha: f64, alt: Alternative) -> String {
     let mut s = format!(
         "To detect {} = {} with {} power at α = {}, {}, {} are needed (exact power {} for the t-test)",
         effect_symbol(design),
@@ -56,7 +57,10 @@ pub fn planned_sentence(p: &Planned, design: &str, alpha: f64, alt: Alternative)
 
 /// The answer of `attest power` in one or more plain lines.
 pub fn answer_lines(a: &Answer) -> Vec<String> {
-    let sym = if a.design == "paired" { "dz" } else { "d" };
+    let sym = match a.design {
+        Design::Paired => "dz",
+        Design::Independent | Design::OneSample => "d",
+    };
     let alpha = apa::bounded(a.alpha, 3);
     let alpha = alpha.trim_end_matches('0');
     let mut lines = vec![match a.solved {
@@ -65,19 +69,19 @@ pub fn answer_lines(a: &Answer) -> Vec<String> {
             apa::two(a.effect.abs()),
             pct(a.target_power.unwrap_or(a.power)),
             sided(a.alternative),
-            per_group(&a.n, &a.design),
+            per_group(&a.n, a.design),
             apa::bounded(a.power, 3)
         ),
         Solved::Power => format!(
             "with {} at α = {alpha}, {}, the power to detect {sym} = {} is {}",
-            per_group(&a.n, &a.design),
+            per_group(&a.n, a.design),
             sided(a.alternative),
             apa::two(a.effect.abs()),
             apa::bounded(a.power, 3)
         ),
         Solved::Effect => format!(
             "with {} at α = {alpha}, {}, the smallest effect detectable with {} power is {sym} = {}",
-            per_group(&a.n, &a.design),
+            per_group(&a.n, a.design),
             sided(a.alternative),
             pct(a.target_power.unwrap_or(a.power)),
             apa::two(a.effect.abs())
@@ -91,8 +95,8 @@ pub fn answer_lines(a: &Answer) -> Vec<String> {
     if let Some(r) = &a.rank {
         lines.push(format!(
             "for a rank test: {} if the data are normal (ARE 3/π), {} for any continuous shape (ARE 0.864)",
-            per_group(&r.normal_data, &a.design),
-            per_group(&r.any_shape, &a.design)
+            per_group(&r.normal_data, a.design),
+            per_group(&r.any_shape, a.design)
         ));
     }
     if let Some(s) = &a.simulated {
