@@ -28,7 +28,7 @@ pub enum Kind {
 
 impl Kind {
     /// The process exit code for this kind.
-    pub fn exit_code(self) -> i32 {
+    pub(crate) fn exit_code(self) -> i32 {
         match self {
             Kind::Input => 1,
             Kind::Verification => 2,
@@ -77,7 +77,7 @@ pub struct Failure {
 
 impl Failure {
     /// A bad-input failure with no location.
-    pub fn input(what: impl Into<String>) -> Self {
+    pub(crate) fn input(what: impl Into<String>) -> Self {
         Failure {
             what: what.into(),
             location: None,
@@ -87,23 +87,15 @@ impl Failure {
     }
 
     /// An internal failure (I/O of the machine, a broken invariant).
-    pub fn internal(what: impl Into<String>) -> Self {
+    pub(crate) fn internal(what: impl Into<String>) -> Self {
         Failure {
             kind: Kind::Internal,
             ..Failure::input(what)
         }
     }
 
-    /// A verification failure.
-    pub fn verification(what: impl Into<String>) -> Self {
-        Failure {
-            kind: Kind::Verification,
-            ..Failure::input(what)
-        }
-    }
-
     /// Attaches a file (no line) to the failure.
-    pub fn in_file(mut self, file: impl AsRef<Path>) -> Self {
+    pub(crate) fn in_file(mut self, file: impl AsRef<Path>) -> Self {
         self.location = Some(Location {
             file: file.as_ref().to_path_buf(),
             line: None,
@@ -113,7 +105,7 @@ impl Failure {
     }
 
     /// Attaches a file position to the failure.
-    pub fn at(mut self, file: impl AsRef<Path>, line: usize, column: Option<usize>) -> Self {
+    pub(crate) fn at(mut self, file: impl AsRef<Path>, line: usize, column: Option<usize>) -> Self {
         self.location = Some(Location {
             file: file.as_ref().to_path_buf(),
             line: Some(line),
@@ -123,13 +115,13 @@ impl Failure {
     }
 
     /// Adds the `help:` line.
-    pub fn help(mut self, help: impl Into<String>) -> Self {
+    pub(crate) fn help(mut self, help: impl Into<String>) -> Self {
         self.help = Some(help.into());
         self
     }
 
     /// A failure to read or write a file, worded for the user.
-    pub fn io(action: &str, path: &Path, err: &std::io::Error) -> Self {
+    pub(crate) fn io(action: &str, path: &Path, err: &std::io::Error) -> Self {
         let kind = match err.kind() {
             std::io::ErrorKind::NotFound | std::io::ErrorKind::PermissionDenied => Kind::Input,
             _ => Kind::Internal,
@@ -172,7 +164,7 @@ pub type Result<T, E = Failure> = std::result::Result<T, E>;
 
 /// Converts a byte offset in `source` to a 1-based (line, column); the
 /// column counts characters, not bytes.
-pub fn line_col(source: &str, offset: usize) -> (usize, usize) {
+pub(crate) fn line_col(source: &str, offset: usize) -> (usize, usize) {
     let offset = offset.min(source.len());
     let before = &source[..floor_char_boundary(source, offset)];
     let line = before.matches('\n').count() + 1;

@@ -5,17 +5,17 @@
 //! `results` → `render`, driven by `pipeline` and exposed by `cli`.
 #![warn(missing_docs)]
 
-pub mod analysis;
+pub(crate) mod analysis;
 pub mod cli;
 pub mod data;
 pub mod error;
 pub mod lock;
-pub mod output;
-pub mod pipeline;
+pub(crate) mod output;
+pub(crate) mod pipeline;
 pub mod plan;
 pub mod render;
 pub mod results;
-pub mod starter;
+pub(crate) mod starter;
 pub mod stats;
-pub mod verify;
+pub(crate) mod verify;
 pub mod witness;

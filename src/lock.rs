@@ -15,7 +15,7 @@ use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
 
 /// Version of the lock-file format.
-pub const LOCK_FORMAT: u32 = 1;
+pub(crate) const LOCK_FORMAT: u32 = 1;
 
 /// The lock file's content.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -52,13 +52,13 @@ pub struct LockedData {
 }
 
 /// The lock path for an analysis file: same folder, same stem, `.lock`.
-pub fn lock_path(analysis: &Path) -> PathBuf {
+pub(crate) fn lock_path(analysis: &Path) -> PathBuf {
     analysis.with_extension("lock")
 }
 
 impl LockFile {
     /// Seals a plan now (or at `SOURCE_DATE_EPOCH`).
-    pub fn seal(file: &AnalysisFile, data_path: &Path) -> Result<LockFile> {
+    pub(crate) fn seal(file: &AnalysisFile, data_path: &Path) -> Result<LockFile> {
         let data_hash = match std::fs::read(data_path) {
             Ok(bytes) => Some(sha256_hex(&bytes)),
             Err(e) if e.kind() == std::io::ErrorKind::NotFound => None,
@@ -84,7 +84,7 @@ impl LockFile {
     }
 
     /// The hash of everything but `content_sha256`.
-    pub fn own_hash(&self) -> String {
+    pub(crate) fn own_hash(&self) -> String {
         let mut v = serde_json::to_value(self).expect("a lock always serialises");
         if let Some(map) = v.as_object_mut() {
             map.remove("content_sha256");
@@ -93,19 +93,19 @@ impl LockFile {
     }
 
     /// Whether the stored plan and content hashes match the content.
-    pub fn intact(&self) -> bool {
+    pub(crate) fn intact(&self) -> bool {
         self.content_sha256 == self.own_hash() && self.plan_sha256 == plan_hash(&self.plan)
     }
 
     /// The lock as written to disk (pretty JSON, trailing newline).
-    pub fn to_text(&self) -> String {
+    pub(crate) fn to_text(&self) -> String {
         let mut s = serde_json::to_string_pretty(self).expect("a lock always serialises");
         s.push('\n');
         s
     }
 
     /// Reads a lock file. A lock that does not parse is reported as such.
-    pub fn read(path: &Path) -> Result<(LockFile, Vec<u8>)> {
+    pub(crate) fn read(path: &Path) -> Result<(LockFile, Vec<u8>)> {
         let bytes = std::fs::read(path).map_err(|e| Failure::io("read the lock", path, &e))?;
         let lock: LockFile = serde_json::from_slice(&bytes).map_err(|e| {
             Failure::input(format!("the lock file cannot be read: {e}"))
@@ -124,13 +124,13 @@ impl LockFile {
     }
 
     /// The canonical plan value stored in the lock.
-    pub fn plan_value(&self) -> serde_json::Value {
+    pub(crate) fn plan_value(&self) -> serde_json::Value {
         canonical_value(&self.plan)
     }
 }
 
 /// The file-name part of a path, as text.
-pub fn file_name(path: &Path) -> String {
+pub(crate) fn file_name(path: &Path) -> String {
     path.file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default()
@@ -138,7 +138,7 @@ pub fn file_name(path: &Path) -> String {
 
 /// Seconds since the Unix epoch: `SOURCE_DATE_EPOCH` if set and valid,
 /// otherwise the system clock.
-pub fn now_epoch() -> i64 {
+pub(crate) fn now_epoch() -> i64 {
     if let Ok(s) = std::env::var("SOURCE_DATE_EPOCH") {
         if let Ok(v) = s.trim().parse::<i64>() {
             return v;
@@ -154,7 +154,7 @@ pub fn now_epoch() -> i64 {
 ///
 /// Civil-from-days conversion after Hinnant (2013), "chrono-Compatible
 /// Low-Level Date Algorithms".
-pub fn rfc3339_utc(epoch: i64) -> String {
+pub(crate) fn rfc3339_utc(epoch: i64) -> String {
     let days = epoch.div_euclid(86_400);
     let secs = epoch.rem_euclid(86_400);
     let z = days + 719_468;

@@ -10,10 +10,10 @@ use std::io::Write;
 use std::path::{Path, PathBuf};
 
 /// Name of the list of files attest wrote into an output folder.
-pub const MANIFEST: &str = ".attest-outputs";
+pub(crate) const MANIFEST: &str = ".attest-outputs";
 
 /// Writes `bytes` to `path` atomically (temp file + rename).
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+pub(crate) fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
     let tmp = temp_name(path);
     let res = (|| -> std::io::Result<()> {
         let mut f = std::fs::File::create(&tmp)?;
@@ -28,7 +28,7 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
 }
 
 /// Creates `path` with `bytes`, refusing if it exists (never overwrites).
-pub fn create_new(path: &Path, bytes: &[u8]) -> Result<()> {
+pub(crate) fn create_new(path: &Path, bytes: &[u8]) -> Result<()> {
     let tmp = temp_name(path);
     let res = (|| -> std::io::Result<()> {
         let mut f = std::fs::File::create(&tmp)?;
@@ -58,7 +58,7 @@ fn temp_name(path: &Path) -> PathBuf {
 }
 
 /// An output folder that attest may write into.
-pub struct OutDir {
+pub(crate) struct OutDir {
     /// The folder.
     pub dir: PathBuf,
     known: BTreeSet<String>,
@@ -68,7 +68,7 @@ pub struct OutDir {
 impl OutDir {
     /// Opens (creating if needed) an output folder. Refuses a folder that
     /// holds files attest did not write, unless `force`.
-    pub fn open(dir: &Path, force: bool) -> Result<OutDir> {
+    pub(crate) fn open(dir: &Path, force: bool) -> Result<OutDir> {
         std::fs::create_dir_all(dir)
             .map_err(|e| Failure::io("create the output folder", dir, &e))?;
         let known: BTreeSet<String> = std::fs::read_to_string(dir.join(MANIFEST))
@@ -93,7 +93,7 @@ impl OutDir {
     }
 
     /// Writes one output file (relative name, `/`-separated) atomically.
-    pub fn write(&mut self, name: &str, bytes: &[u8]) -> Result<PathBuf> {
+    pub(crate) fn write(&mut self, name: &str, bytes: &[u8]) -> Result<PathBuf> {
         let path = self.dir.join(name);
         if let Some(parent) = path.parent() {
             std::fs::create_dir_all(parent).map_err(|e| Failure::io("create", parent, &e))?;
@@ -104,7 +104,7 @@ impl OutDir {
     }
 
     /// Records what attest has written here, so later runs recognise it.
-    pub fn finish(self) -> Result<()> {
+    pub(crate) fn finish(self) -> Result<()> {
         let all: BTreeSet<&String> = self.known.iter().chain(self.written.iter()).collect();
         let mut text = String::new();
         for n in all {

@@ -16,7 +16,7 @@ use std::path::{Path, PathBuf};
 
 /// Options of `attest run`.
 #[derive(Clone, Debug, Default)]
-pub struct RunOptions {
+pub(crate) struct RunOptions {
     /// Output folder; `out/<stem>/` under the current folder when absent.
     pub out: Option<PathBuf>,
     /// Run without a lock; outputs are stamped "not preregistered".
@@ -28,17 +28,15 @@ pub struct RunOptions {
 }
 
 /// What `run` produced.
-pub struct RunOutcome {
+pub(crate) struct RunOutcome {
     /// The results model.
     pub results: Results,
     /// Where the outputs are.
     pub out_dir: PathBuf,
-    /// The files written, in order.
-    pub written: Vec<PathBuf>,
 }
 
 /// What `lock` produced.
-pub struct LockOutcome {
+pub(crate) struct LockOutcome {
     /// The sealed lock.
     pub lock: LockFile,
     /// Where it was written.
@@ -50,7 +48,7 @@ pub struct LockOutcome {
 }
 
 /// `attest check`: parse and validate, touching no data.
-pub fn check(path: &Path) -> Result<AnalysisFile> {
+pub(crate) fn check(path: &Path) -> Result<AnalysisFile> {
     let file = validate::load(path)?;
     // A sample-size plan that cannot be met is a plan error, found now.
     planned_sizes(&file.plan)?;
@@ -58,7 +56,7 @@ pub fn check(path: &Path) -> Result<AnalysisFile> {
 }
 
 /// The default output folder for an analysis file: `out/<stem>/`.
-pub fn default_out(path: &Path) -> PathBuf {
+pub(crate) fn default_out(path: &Path) -> PathBuf {
     let stem = path
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
@@ -74,7 +72,7 @@ fn plan_dir(path: &Path) -> PathBuf {
 }
 
 /// `attest lock`: validate, seal, and render the preregistration document.
-pub fn lock(
+pub(crate) fn lock(
     path: &Path,
     out: Option<&Path>,
     templates: Option<&Path>,
@@ -149,7 +147,7 @@ fn lock_state(
 
 /// Runs every hypothesis of an analysis file and builds the results
 /// model, writing nothing.
-pub fn compute(path: &Path, unlocked: bool) -> Result<Results> {
+pub(crate) fn compute(path: &Path, unlocked: bool) -> Result<Results> {
     let file = validate::load(path)?;
     let (state, record, changes) = lock_state(&file, unlocked)?;
     let dir = plan_dir(path);
@@ -203,7 +201,7 @@ fn outside(plan_dir: &Path, data: &Path) -> bool {
 /// The bytes of every output of a run, by relative file name, in the
 /// order they are written (`results.json` last, so its presence means the
 /// run completed).
-pub fn render_outputs(
+pub(crate) fn render_outputs(
     results: &Results,
     templates: Option<&Path>,
 ) -> Result<Vec<(String, Vec<u8>)>> {
@@ -214,26 +212,21 @@ pub fn render_outputs(
 }
 
 /// `attest run` for one analysis file.
-pub fn run(path: &Path, opts: &RunOptions) -> Result<RunOutcome> {
+pub(crate) fn run(path: &Path, opts: &RunOptions) -> Result<RunOutcome> {
     let results = compute(path, opts.unlocked)?;
     let files = render_outputs(&results, opts.templates.as_deref())?;
     let out_dir = opts.out.clone().unwrap_or_else(|| default_out(path));
     let mut dir = OutDir::open(&out_dir, opts.force)?;
-    let mut written = Vec::new();
     for (name, bytes) in &files {
-        written.push(dir.write(name, bytes)?);
+        dir.write(name, bytes)?;
     }
     dir.finish()?;
-    Ok(RunOutcome {
-        results,
-        out_dir,
-        written,
-    })
+    Ok(RunOutcome { results, out_dir })
 }
 
 /// Expands files and folders into analysis files: a folder contributes
 /// every `*.toml` below it, sorted by path, so batch order is stable.
-pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>> {
+pub(crate) fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>> {
     let mut out = Vec::new();
     for p in paths {
         if p.is_dir() {
@@ -281,7 +274,7 @@ fn collect_toml(dir: &Path, out: &mut Vec<PathBuf>) -> Result<()> {
 
 /// Compares what a run would write with what the output folder holds,
 /// writing nothing. Returns the names of files that differ or are missing.
-pub fn unchanged(path: &Path, opts: &RunOptions) -> Result<(Results, Vec<String>)> {
+pub(crate) fn unchanged(path: &Path, opts: &RunOptions) -> Result<(Results, Vec<String>)> {
     let results = compute(path, opts.unlocked)?;
     let files = render_outputs(&results, opts.templates.as_deref())?;
     let out_dir = opts.out.clone().unwrap_or_else(|| default_out(path));
@@ -296,7 +289,7 @@ pub fn unchanged(path: &Path, opts: &RunOptions) -> Result<(Results, Vec<String>
 }
 
 /// The planned size of each hypothesis that states a sample-size plan.
-pub fn planned_sizes(
+pub(crate) fn planned_sizes(
     plan: &crate::plan::Plan,
 ) -> Result<Vec<Option<crate::analysis::planning::Planned>>> {
     plan.hypotheses

@@ -425,7 +425,7 @@ pub struct PlanningOutcome {
 
 impl EquivalenceResult {
     /// The result of [`Tost`] at level α (its interval is the 1 − 2α one).
-    pub fn from_tost(t: &Tost, alpha: f64) -> Self {
+    pub(crate) fn from_tost(t: &Tost, alpha: f64) -> Self {
         EquivalenceResult {
             low: t.low,
             high: t.high,

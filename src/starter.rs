@@ -11,7 +11,12 @@ use crate::plan::{Design, Method};
 use std::path::{Path, PathBuf};
 
 /// Writes `analyses/NAME.toml` under `root`; never overwrites.
-pub fn write(root: &Path, name: &str, design: Design, method: Option<Method>) -> Result<PathBuf> {
+pub(crate) fn write(
+    root: &Path,
+    name: &str,
+    design: Design,
+    method: Option<Method>,
+) -> Result<PathBuf> {
     if name.is_empty()
         || !name
             .chars()

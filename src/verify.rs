@@ -17,7 +17,7 @@ use std::path::{Path, PathBuf};
 
 /// One line of the verification.
 #[derive(Clone, Debug, PartialEq, Eq)]
-pub struct Item {
+pub(crate) struct Item {
     /// What was compared, e.g. "data" or "report.md".
     pub what: String,
     /// `None` when the same; otherwise what changed.
@@ -54,7 +54,7 @@ impl Item {
 }
 
 /// The verification of one report.
-pub struct Verification {
+pub(crate) struct Verification {
     /// The analysis file that was re-run.
     pub analysis: PathBuf,
     /// Every item compared, in order.
@@ -63,7 +63,7 @@ pub struct Verification {
 
 impl Verification {
     /// Whether everything reproduced.
-    pub fn passed(&self) -> bool {
+    pub(crate) fn passed(&self) -> bool {
         !self.items.iter().any(|i| i.fatal && i.changed.is_some())
     }
 }
@@ -113,7 +113,7 @@ fn find_analysis(results: &Results, plan: Option<&Path>) -> Result<PathBuf> {
 }
 
 /// Verifies one report.
-pub fn verify(
+pub(crate) fn verify(
     target: &Path,
     plan: Option<&Path>,
     templates: Option<&Path>,

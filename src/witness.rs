@@ -40,7 +40,7 @@ fn git(dir: &Path, args: &[&str]) -> Option<String> {
 }
 
 /// Asks git about `lock_path`.
-pub fn witness(lock_path: &Path) -> Witness {
+pub(crate) fn witness(lock_path: &Path) -> Witness {
     let dir = match lock_path.parent() {
         Some(d) if !d.as_os_str().is_empty() => d,
         _ => Path::new("."),

@@ -15,20 +15,20 @@ use crate::results::*;
 use crate::stats::{self, describe, Alternative, StatsError};
 use rayon::prelude::*;
 
-pub mod planning;
+pub(crate) mod planning;
 
 /// Figures draw at most this many points per set; larger sets are drawn
 /// from evenly spaced order statistics (so the quantiles stay exact).
-pub const PLOT_POINTS: usize = 2000;
+pub(crate) const PLOT_POINTS: usize = 2000;
 /// Before/after figures draw at most this many units.
-pub const PLOT_PAIRS: usize = 400;
+pub(crate) const PLOT_PAIRS: usize = 400;
 /// Histogram bins over all values.
-pub const PLOT_BINS: usize = 40;
+pub(crate) const PLOT_BINS: usize = 40;
 
 /// Analyses one hypothesis on its selected values. `p_adjusted` and
 /// `decision` are provisional here; the caller applies the plan's
 /// multiplicity correction across hypotheses.
-pub fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisResult> {
+pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisResult> {
     let level = plan.confidence;
     let fail = |what: &str, e: StatsError| -> Failure {
         Failure::input(format!("hypothesis {}: {what}: {e}", h.id)).help(
@@ -185,7 +185,7 @@ fn sort_values(v: &mut [f64]) {
 /// Applies the plan's multiplicity correction and the decisions, and
 /// returns the correction that applied: with a single hypothesis there is
 /// nothing to correct for, whatever the plan names.
-pub fn adjust_all(plan: &Plan, results: &mut [HypothesisResult]) -> Correction {
+pub(crate) fn adjust_all(plan: &Plan, results: &mut [HypothesisResult]) -> Correction {
     let applied = if results.len() < 2 {
         Correction::None
     } else {
@@ -545,7 +545,7 @@ fn equivalence(
 /// Figure data: every value up to [`PLOT_POINTS`], otherwise evenly spaced
 /// order statistics; a histogram over all values either way, and the
 /// normal Q–Q positions of the points drawn. The points are sorted.
-pub fn plot_set(label: &str, x: &[f64]) -> PlotData {
+pub(crate) fn plot_set(label: &str, x: &[f64]) -> PlotData {
     let sorted = stats::sorted(x);
     let n = sorted.len();
     let (points, sampled) = if n <= PLOT_POINTS {

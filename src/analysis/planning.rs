@@ -16,7 +16,7 @@ use serde::{Deserialize, Serialize};
 /// A planning question. Exactly two of `effect`, `power` and `n` are given;
 /// the third is solved for.
 #[derive(Clone, Debug)]
-pub struct Question {
+pub(crate) struct Question {
     /// The design.
     pub design: Design,
     /// Cohen's d (d_z for paired), as a size in the tested direction.
@@ -42,7 +42,7 @@ pub struct Question {
 /// What was solved for.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
-pub enum Solved {
+pub(crate) enum Solved {
     /// The sample size for a target power.
     N,
     /// The power at a given size.
@@ -54,7 +54,7 @@ pub enum Solved {
 /// Sizes for the rank tests, from the t-test size and an asymptotic
 /// relative efficiency (ARE).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct RankSizes {
+pub(crate) struct RankSizes {
     /// Using ARE = 3/π ≈ 0.955 (normal data).
     pub normal_data: Vec<usize>,
     /// Using the ARE lower bound 0.864 (any continuous shape).
@@ -63,7 +63,7 @@ pub struct RankSizes {
 
 /// A simulation check of the answer.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct Simulated {
+pub(crate) struct Simulated {
     /// Simulated studies.
     pub reps: usize,
     /// Seed.
@@ -76,7 +76,7 @@ pub struct Simulated {
 
 /// The answer, as printed and as `--json`.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct Answer {
+pub(crate) struct Answer {
     /// What was solved for.
     pub solved: Solved,
     /// The design.
@@ -127,7 +127,7 @@ fn signed(effect: f64, alt: Alternative) -> f64 {
 }
 
 /// Answers a planning question.
-pub fn answer(q: &Question) -> Result<Answer> {
+pub(crate) fn answer(q: &Question) -> Result<Answer> {
     let given = [q.effect.is_some(), q.power.is_some(), q.n.is_some()]
         .iter()
         .filter(|b| **b)
@@ -270,7 +270,7 @@ pub struct Planned {
 }
 
 /// Computes the planned size of a hypothesis at the plan's alpha.
-pub fn planned(h: &Hypothesis, p: &Planning, alpha: f64) -> Result<Planned> {
+pub(crate) fn planned(h: &Hypothesis, p: &Planning, alpha: f64) -> Result<Planned> {
     let q = Question {
         design: h.design,
         effect: Some(p.effect_size()),
@@ -304,7 +304,12 @@ pub fn planned(h: &Hypothesis, p: &Planning, alpha: f64) -> Result<Planned> {
 /// Sensitivity of an achieved sample: the smallest effect (d or d_z) the
 /// test could detect with the planned power (Student's t; reported instead
 /// of "observed power", which is a transform of p — Hoenig & Heisey 2001).
-pub fn sensitivity(h: &Hypothesis, p: &Planning, alpha: f64, achieved: &[usize]) -> Option<f64> {
+pub(crate) fn sensitivity(
+    h: &Hypothesis,
+    p: &Planning,
+    alpha: f64,
+    achieved: &[usize],
+) -> Option<f64> {
     let n1 = *achieved.first()?;
     let ratio = match (h.design, achieved) {
         (Design::Independent, [a, b]) if *a > 0 => *b as f64 / *a as f64,

@@ -8,7 +8,7 @@ use std::path::PathBuf;
 /// render an audit-ready report.
 #[derive(Debug, Parser)]
 #[command(name = "attest", version, about, long_about = None, propagate_version = true, term_width = 100)]
-pub struct Cli {
+pub(crate) struct Cli {
     /// What to do.
     #[command(subcommand)]
     pub command: Command,
@@ -16,7 +16,7 @@ pub struct Cli {
 
 /// The commands.
 #[derive(Debug, Subcommand)]
-pub enum Command {
+pub(crate) enum Command {
     /// Start a new analysis plan: write a complete, commented
     /// analyses/NAME.toml for a design. Never overwrites.
     New {
@@ -152,7 +152,7 @@ pub enum Command {
 
 /// Designs, as named on the command line.
 #[derive(Clone, Copy, Debug, clap::ValueEnum)]
-pub enum DesignArg {
+pub(crate) enum DesignArg {
     /// Two independent groups.
     Independent,
     /// Two measurements on the same units.
@@ -173,7 +173,7 @@ impl From<DesignArg> for crate::plan::Design {
 
 /// Methods, as named in analysis files.
 #[derive(Clone, Copy, Debug, clap::ValueEnum)]
-pub enum MethodArg {
+pub(crate) enum MethodArg {
     /// Student's t-test.
     StudentT,
     /// Welch's t-test.
@@ -207,7 +207,7 @@ impl From<MethodArg> for crate::plan::Method {
 
 /// Alternatives, as named on the command line.
 #[derive(Clone, Copy, Debug, clap::ValueEnum)]
-pub enum AlternativeArg {
+pub(crate) enum AlternativeArg {
     /// The difference is not zero.
     TwoSided,
     /// The difference is greater than zero.

@@ -20,7 +20,12 @@ struct Row {
 }
 
 /// Runs (or compares, with `expect_same`) every analysis and prints the table.
-pub fn run(files: &[PathBuf], opts: &RunOptions, expect_same: bool, quiet: bool) -> Result<i32> {
+pub(crate) fn run(
+    files: &[PathBuf],
+    opts: &RunOptions,
+    expect_same: bool,
+    quiet: bool,
+) -> Result<i32> {
     let bar = if quiet || !std::io::stderr().is_terminal() {
         ProgressBar::with_draw_target(Some(files.len() as u64), ProgressDrawTarget::hidden())
     } else {

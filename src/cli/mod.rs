@@ -5,7 +5,7 @@ mod args;
 mod batch;
 mod terminal;
 
-pub use args::{Cli, Command};
+pub(crate) use args::{Cli, Command};
 
 use crate::error::{Failure, Result};
 use crate::pipeline::{self, RunOptions};

@@ -7,7 +7,7 @@ use crate::render::view::apa;
 use crate::results::{EffectKind, LockState, Results};
 
 /// `attest check`: a one-screen summary of the plan.
-pub fn plan_summary(f: &AnalysisFile) -> String {
+pub(crate) fn plan_summary(f: &AnalysisFile) -> String {
     let p = &f.plan;
     let mut s = format!(
         "plan: {} — \"{}\"\n  alpha {}  confidence {}  correction {}  check_alpha {}\n  data: {}\n",
@@ -61,7 +61,7 @@ pub fn plan_summary(f: &AnalysisFile) -> String {
 }
 
 /// `attest lock`: what was sealed and where.
-pub fn locked(o: &LockOutcome) -> String {
+pub(crate) fn locked(o: &LockOutcome) -> String {
     let mut s = format!(
         "locked: {}\n  plan sha256 {}\n  at {}\n",
         o.lock_path.display(),
@@ -88,7 +88,7 @@ pub fn locked(o: &LockOutcome) -> String {
 }
 
 /// Warnings about the lock, one line per changed field.
-pub fn lock_warnings(r: &Results) -> Vec<String> {
+pub(crate) fn lock_warnings(r: &Results) -> Vec<String> {
     let mut out = Vec::new();
     if let Some(rec) = &r.lock_record {
         if !rec.intact {
@@ -124,7 +124,7 @@ pub fn lock_warnings(r: &Results) -> Vec<String> {
 }
 
 /// `attest run`: one line per hypothesis, then where the report is.
-pub fn run_summary(o: &RunOutcome, colour: bool) -> String {
+pub(crate) fn run_summary(o: &RunOutcome, colour: bool) -> String {
     let r = &o.results;
     let mut s = String::new();
     let width = r
@@ -164,7 +164,7 @@ pub fn run_summary(o: &RunOutcome, colour: bool) -> String {
 }
 
 /// `attest verify`: one line per item, then the verdict.
-pub fn verification(v: &crate::verify::Verification) -> String {
+pub(crate) fn verification(v: &crate::verify::Verification) -> String {
     let mut s = format!("verify: {}\n", v.analysis.display());
     let width = v
         .items
@@ -190,7 +190,7 @@ pub fn verification(v: &crate::verify::Verification) -> String {
 /// The short symbol of an effect size on the terminal.
 /// `attest power --json`: the answer, with `n` a number for one-group
 /// designs and an array of group sizes for independent ones.
-pub fn power_json(a: &crate::analysis::planning::Answer) -> String {
+pub(crate) fn power_json(a: &crate::analysis::planning::Answer) -> String {
     let mut v = serde_json::to_value(a).expect("an answer always serialises");
     if a.n.len() == 1 {
         v["n"] = serde_json::json!(a.n[0]);
@@ -200,7 +200,7 @@ pub fn power_json(a: &crate::analysis::planning::Answer) -> String {
 
 /// Whether to colour terminal output: only on a terminal, never when
 /// `NO_COLOR` is set (https://no-color.org convention, common practice).
-pub fn colour() -> bool {
+pub(crate) fn colour() -> bool {
     use std::io::IsTerminal;
     std::env::var_os("NO_COLOR").is_none() && std::io::stdout().is_terminal()
 }
@@ -219,7 +219,7 @@ fn paint(verdict: &str, colour: bool) -> String {
 }
 
 /// `attest run --json`: one object per hypothesis and the report's place.
-pub fn run_json(o: &RunOutcome) -> String {
+pub(crate) fn run_json(o: &RunOutcome) -> String {
     let hyps: Vec<serde_json::Value> = o
         .results
         .hypotheses

@@ -18,7 +18,7 @@ use std::collections::HashMap;
 
 /// Why a cell could not be used.
 #[derive(Clone, Debug, PartialEq, Eq)]
-pub enum Problem {
+pub(crate) enum Problem {
     /// Not a number at all.
     NotNumber,
     /// `inf`, `nan` and their spellings.
@@ -36,7 +36,7 @@ const POW10: [f64; 23] = [
 ];
 
 /// Parses a trimmed, non-missing cell as a number with `decimal` (`.` or `,`) as the decimal mark.
-pub fn parse_number(s: &[u8], decimal: u8) -> Result<f64, Problem> {
+pub(crate) fn parse_number(s: &[u8], decimal: u8) -> Result<f64, Problem> {
     if let Some(v) = fast_path(s, decimal) {
         return Ok(v);
     }
@@ -99,14 +99,14 @@ fn fast_path(s: &[u8], decimal: u8) -> Option<f64> {
 }
 
 /// Trims ASCII whitespace (spaces, tabs, a stray carriage return).
-pub fn trim(s: &[u8]) -> &[u8] {
+pub(crate) fn trim(s: &[u8]) -> &[u8] {
     s.trim_ascii()
 }
 
 /// Builds the used columns row by row; readers feed it cells and attach the
 /// position when it reports a [`Problem`].
 #[derive(Debug)]
-pub struct Builder {
+pub(crate) struct Builder {
     decimal: u8,
     missing: Vec<Vec<u8>>,
     /// Whether a missing text starts with a digit (such as "999"), which
@@ -124,7 +124,7 @@ struct ColumnBuild {
 
 impl Builder {
     /// A builder for the `wanted` columns.
-    pub fn new(wanted: &[Use], decimal: char, missing: &[String]) -> Self {
+    pub(crate) fn new(wanted: &[Use], decimal: char, missing: &[String]) -> Self {
         let missing: Vec<Vec<u8>> = missing
             .iter()
             .map(|m| m.trim().as_bytes().to_vec())
@@ -147,12 +147,12 @@ impl Builder {
     }
 
     /// Whether a trimmed cell text is one of the missing texts.
-    pub fn is_missing(&self, s: &[u8]) -> bool {
+    pub(crate) fn is_missing(&self, s: &[u8]) -> bool {
         self.missing.iter().any(|m| m.as_slice() == s)
     }
 
     /// Adds a cell given as text to column `k`.
-    pub fn push_text(&mut self, k: usize, raw: &[u8]) -> Result<(), Problem> {
+    pub(crate) fn push_text(&mut self, k: usize, raw: &[u8]) -> Result<(), Problem> {
         // Shortcuts for the common cells, each giving exactly what the full
         // path below gives: a label equal to the previous row's (levels are
         // stored trimmed, so an exact match needs no trimming, and the code
@@ -207,7 +207,7 @@ impl Builder {
     }
 
     /// Adds a cell that is already a number (a spreadsheet's numeric cell).
-    pub fn push_number(&mut self, k: usize, v: f64) -> Result<(), Problem> {
+    pub(crate) fn push_number(&mut self, k: usize, v: f64) -> Result<(), Problem> {
         if !v.is_finite() {
             return Err(Problem::NotFinite);
         }
@@ -224,7 +224,7 @@ impl Builder {
     }
 
     /// Finishes the columns; `names[k]`/`positions[k]` describe column `k`.
-    pub fn finish(self, wanted: &[Use], positions: &[usize]) -> HashMap<String, Column> {
+    pub(crate) fn finish(self, wanted: &[Use], positions: &[usize]) -> HashMap<String, Column> {
         self.cols
             .into_iter()
             .zip(wanted.iter().zip(positions))
@@ -279,7 +279,7 @@ fn intern(
 }
 
 /// The user's message for a cell problem at a position.
-pub fn failure(p: &Problem, column: &str, text: &[u8], decimal: char) -> Failure {
+pub(crate) fn failure(p: &Problem, column: &str, text: &[u8], decimal: char) -> Failure {
     let shown = String::from_utf8_lossy(trim(text));
     match p {
         Problem::NotNumber => {

@@ -26,11 +26,11 @@ use crate::plan::{ExcludeKind, ExcludeRule};
 use crate::stats::describe::quantile_sorted;
 
 /// Scale that makes the MAD estimate the SD of normal data (1/Φ⁻¹(3/4), Leys et al. 2013).
-pub const MAD_SCALE: f64 = 1.4826;
+pub(crate) const MAD_SCALE: f64 = 1.4826;
 
 /// For every row, 0 when it survives all rules, else the 1-based number of
 /// the rule that removed it.
-pub fn apply(ds: &Dataset, rules: &[ExcludeRule]) -> Result<Vec<u16>> {
+pub(crate) fn apply(ds: &Dataset, rules: &[ExcludeRule]) -> Result<Vec<u16>> {
     let mut by_rule = vec![0u16; ds.rows];
     if rules.len() > usize::from(u16::MAX) {
         return Err(Failure::input(format!(
@@ -124,7 +124,7 @@ fn grouped(
 /// The interval kept by the median-distance rule, or `None` when nothing is
 /// removed (no values, or MAD = 0). Returned as bounds so that
 /// |x − m| / (1.4826·MAD) > limit ⇔ x outside [m − limit·s, m + limit·s].
-pub fn median_distance(values: &[f64], limit: f64) -> Option<(f64, f64)> {
+pub(crate) fn median_distance(values: &[f64], limit: f64) -> Option<(f64, f64)> {
     if values.is_empty() {
         return None;
     }
@@ -153,7 +153,7 @@ pub fn median_distance(values: &[f64], limit: f64) -> Option<(f64, f64)> {
 }
 
 /// Tukey's fences `(Q1 − k·IQR, Q3 + k·IQR)`, or `None` for no values.
-pub fn tukey_fences(values: &[f64], k: f64) -> Option<(f64, f64)> {
+pub(crate) fn tukey_fences(values: &[f64], k: f64) -> Option<(f64, f64)> {
     if values.is_empty() {
         return None;
     }

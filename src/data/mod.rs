@@ -11,11 +11,11 @@
 //! numeric columns as `f64` (NaN marks a missing cell, 8 bytes a value) and
 //! text columns as `u32` codes into a table of distinct texts.
 
-pub mod cell;
-pub mod exclude;
+pub(crate) mod cell;
+pub(crate) mod exclude;
 pub mod read;
 pub mod select;
-pub mod xlsx;
+pub(crate) mod xlsx;
 
 use crate::error::{Failure, Result};
 use crate::plan::{Comparison, DataFormat, ExcludeKind, Plan};
@@ -37,7 +37,7 @@ pub struct TextColumn {
 
 impl TextColumn {
     /// The code of a non-missing level with this text, if any row has it.
-    pub fn code_of(&self, text: &str) -> Option<u32> {
+    pub(crate) fn code_of(&self, text: &str) -> Option<u32> {
         self.levels
             .iter()
             .zip(&self.missing)
@@ -46,12 +46,12 @@ impl TextColumn {
     }
 
     /// Whether row `i` is missing.
-    pub fn is_missing(&self, i: usize) -> bool {
+    pub(crate) fn is_missing(&self, i: usize) -> bool {
         self.missing[self.codes[i] as usize]
     }
 
     /// The non-missing levels, in order of first appearance.
-    pub fn present(&self) -> Vec<&str> {
+    pub(crate) fn present(&self) -> Vec<&str> {
         self.levels
             .iter()
             .zip(&self.missing)
@@ -89,7 +89,7 @@ pub struct LineMap {
 
 impl LineMap {
     /// The 1-based line of data row `row`.
-    pub fn line(&self, row: usize) -> usize {
+    pub(crate) fn line(&self, row: usize) -> usize {
         let k = self.jumps.partition_point(|(r, _)| *r <= row);
         match k {
             0 => self.first + row,
@@ -125,7 +125,7 @@ pub struct Dataset {
 impl Dataset {
     /// The column named `name`, or an error when the plan uses a column
     /// this dataset was not read with.
-    pub fn column(&self, name: &str) -> Result<&Column> {
+    pub(crate) fn column(&self, name: &str) -> Result<&Column> {
         self.columns.get(name).ok_or_else(|| {
             Failure::internal(format!("column \"{name}\" was not read from the data file"))
                 .in_file(&self.source)
@@ -134,7 +134,7 @@ impl Dataset {
     }
 
     /// The numeric values of a column the plan uses as numbers.
-    pub fn numbers(&self, name: &str) -> Result<&[f64]> {
+    pub(crate) fn numbers(&self, name: &str) -> Result<&[f64]> {
         let c = self.column(name)?;
         c.numbers.as_deref().ok_or_else(|| {
             Failure::internal(format!("column \"{name}\" was not read as numbers"))
@@ -143,7 +143,7 @@ impl Dataset {
     }
 
     /// The texts of a column the plan uses as labels.
-    pub fn text(&self, name: &str) -> Result<&TextColumn> {
+    pub(crate) fn text(&self, name: &str) -> Result<&TextColumn> {
         let c = self.column(name)?;
         c.text.as_ref().ok_or_else(|| {
             Failure::internal(format!("column \"{name}\" was not read as text"))
@@ -262,7 +262,7 @@ pub struct Table {
 /// Finds each used column in the header, failing on unknown names (with a
 /// "did you mean") and on used names that appear twice. Returns the
 /// 0-based index of each used column.
-pub fn locate(
+pub(crate) fn locate(
     header: &[String],
     wanted: &[Use],
     source: &str,

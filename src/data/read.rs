@@ -25,13 +25,13 @@ const MIN_CHUNK: usize = 1 << 20;
 
 /// Bytes read from the file at a time (a block grows only when a single
 /// record is longer).
-pub const BLOCK: usize = 1 << 24;
+pub(crate) const BLOCK: usize = 1 << 24;
 
 /// The most data rows a file may have. Each used column keeps 8 bytes
 /// (numbers) or 4 bytes (labels) per row, and the statistics work on
 /// copies of the selected values, so this bounds memory to a few GB; a
 /// larger file is refused with a message rather than exhausting memory.
-pub const MAX_ROWS: usize = 50_000_000;
+pub(crate) const MAX_ROWS: usize = 50_000_000;
 
 /// Reads a delimited text file's used columns from memory.
 pub fn read_delimited(
@@ -47,7 +47,7 @@ pub fn read_delimited(
 
 /// Reads a delimited text file's used columns from `path` in blocks,
 /// returning them with the SHA-256 (hex) of the file's bytes.
-pub fn read_delimited_file(
+pub(crate) fn read_delimited_file(
     path: &std::path::Path,
     source: &str,
     spec: &DataSpec,

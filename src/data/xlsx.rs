@@ -15,7 +15,12 @@ use calamine::{Data, Reader, Xlsx};
 use std::io::Cursor;
 
 /// Reads the used columns of one worksheet.
-pub fn read_xlsx(bytes: Vec<u8>, display: &str, spec: &DataSpec, wanted: &[Use]) -> Result<Table> {
+pub(crate) fn read_xlsx(
+    bytes: Vec<u8>,
+    display: &str,
+    spec: &DataSpec,
+    wanted: &[Use],
+) -> Result<Table> {
     let mut book = Xlsx::new(Cursor::new(bytes)).map_err(|e| {
         Failure::input(format!("the file cannot be read as an Excel workbook: {e}"))
             .in_file(display)

@@ -12,17 +12,17 @@ use sha2::{Digest, Sha256};
 
 /// The canonical JSON value of a plan (keys sorted: serde_json's map is a
 /// `BTreeMap` in this build).
-pub fn canonical_value(plan: &Plan) -> Value {
+pub(crate) fn canonical_value(plan: &Plan) -> Value {
     serde_json::to_value(plan).expect("a plan always serialises")
 }
 
 /// The canonical text of a plan.
-pub fn canonical_text(plan: &Plan) -> String {
+pub(crate) fn canonical_text(plan: &Plan) -> String {
     canonical_value(plan).to_string()
 }
 
 /// The plan hash: lowercase hex SHA-256 of the canonical text.
-pub fn plan_hash(plan: &Plan) -> String {
+pub(crate) fn plan_hash(plan: &Plan) -> String {
     sha256_hex(canonical_text(plan).as_bytes())
 }
 
@@ -32,7 +32,7 @@ pub fn sha256_hex(bytes: &[u8]) -> String {
 }
 
 /// Lowercase hexadecimal of a digest (two digits per byte).
-pub fn hex(digest: &[u8]) -> String {
+pub(crate) fn hex(digest: &[u8]) -> String {
     let mut s = String::with_capacity(2 * digest.len());
     for b in digest {
         s.push_str(&format!("{b:02x}"));
@@ -54,7 +54,7 @@ pub struct FieldChange {
 /// Lists every leaf field that differs between two canonical plans, in a
 /// stable order. Hypotheses are matched by id, so reordering them shows as
 /// one change of order rather than as every field changing.
-pub fn diff(locked: &Value, current: &Value) -> Vec<FieldChange> {
+pub(crate) fn diff(locked: &Value, current: &Value) -> Vec<FieldChange> {
     let mut a = Vec::new();
     let mut b = Vec::new();
     flatten("", locked, &mut a);

@@ -8,7 +8,7 @@
 //! key order never change the hash while every change of meaning does.
 
 pub mod canonical;
-pub mod raw;
+pub(crate) mod raw;
 pub mod validate;
 
 use crate::stats::multiplicity::Correction;
@@ -17,7 +17,7 @@ use serde::{Deserialize, Serialize};
 use std::path::PathBuf;
 
 /// The version of the analysis-file format this build reads.
-pub const FORMAT_VERSION: u32 = 1;
+pub(crate) const FORMAT_VERSION: u32 = 1;
 
 /// An analysis file as read from disk: the hashed plan plus what lives
 /// outside the hash (declared deviations) and where it came from.
@@ -150,7 +150,7 @@ pub enum Design {
 
 impl Design {
     /// The name used in analysis files.
-    pub fn as_str(self) -> &'static str {
+    pub(crate) fn as_str(self) -> &'static str {
         match self {
             Design::Independent => "independent",
             Design::Paired => "paired",
@@ -215,7 +215,7 @@ pub enum Method {
 
 impl Method {
     /// Every method, in the order the docs list them.
-    pub const ALL: [Method; 7] = [
+    pub(crate) const ALL: [Method; 7] = [
         Method::StudentT,
         Method::WelchT,
         Method::MannWhitney,
@@ -226,7 +226,7 @@ impl Method {
     ];
 
     /// The name used in analysis files.
-    pub fn as_str(self) -> &'static str {
+    pub(crate) fn as_str(self) -> &'static str {
         match self {
             Method::StudentT => "student-t",
             Method::WelchT => "welch-t",
@@ -239,7 +239,7 @@ impl Method {
     }
 
     /// Whether the method fits the design.
-    pub fn fits(self, design: Design) -> bool {
+    pub(crate) fn fits(self, design: Design) -> bool {
         use Method::*;
         match design {
             Design::Independent => matches!(self, StudentT | WelchT | MannWhitney | Checked),
@@ -249,7 +249,7 @@ impl Method {
     }
 
     /// The failure to report when the method does not fit the design.
-    pub fn misfit(self, design: Design) -> Option<crate::error::Failure> {
+    pub(crate) fn misfit(self, design: Design) -> Option<crate::error::Failure> {
         if self.fits(design) {
             return None;
         }
@@ -272,7 +272,7 @@ impl Method {
     }
 
     /// Whether the method is a rank test.
-    pub fn is_rank(self) -> bool {
+    pub(crate) fn is_rank(self) -> bool {
         matches!(self, Method::MannWhitney | Method::WilcoxonSignedRank)
     }
 }
@@ -335,7 +335,7 @@ pub struct Planning {
 
 impl Planning {
     /// The standardised effect planned for: `effect`, or `difference / sd`.
-    pub fn effect_size(&self) -> f64 {
+    pub(crate) fn effect_size(&self) -> f64 {
         match (self.effect, self.difference, self.sd) {
             (Some(d), _, _) => d,
             (None, Some(diff), Some(sd)) => diff / sd,

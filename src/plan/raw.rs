@@ -10,7 +10,7 @@ use toml::Spanned;
 
 /// A number written as an integer or a float.
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Num(pub f64);
+pub(crate) struct Num(pub f64);
 
 impl<'de> Deserialize<'de> for Num {
     fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
@@ -37,7 +37,7 @@ impl<'de> Deserialize<'de> for Num {
 /// Top level of the analysis file.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct RawFile {
+pub(crate) struct RawFile {
     /// File-format version.
     pub attest: Option<Spanned<i64>>,
     /// Study title.
@@ -72,7 +72,7 @@ pub struct RawFile {
 /// `[data]`.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct RawData {
+pub(crate) struct RawData {
     /// Path relative to the analysis file.
     pub path: Option<Spanned<String>>,
     /// `csv`, `tsv`, `txt` or `xlsx`.
@@ -90,7 +90,7 @@ pub struct RawData {
 /// `[[exclude]]`.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct RawExclude {
+pub(crate) struct RawExclude {
     /// Why.
     pub reason: Option<Spanned<String>>,
     /// Which column.
@@ -112,7 +112,7 @@ pub struct RawExclude {
 /// `[[hypothesis]]`.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct RawHypothesis {
+pub(crate) struct RawHypothesis {
     /// Identifier.
     pub id: Option<Spanned<String>>,
     /// The claim.
@@ -154,7 +154,7 @@ pub struct RawHypothesis {
 /// `[hypothesis.planning]`.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct RawPlanning {
+pub(crate) struct RawPlanning {
     /// Cohen's d of the smallest effect of interest.
     pub effect: Option<Spanned<Num>>,
     /// Raw difference of interest.
@@ -172,7 +172,7 @@ pub struct RawPlanning {
 /// `[[deviation]]`.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct RawDeviation {
+pub(crate) struct RawDeviation {
     /// When.
     pub date: Option<Spanned<String>>,
     /// What changed.

@@ -17,7 +17,7 @@ use toml::Spanned;
 pub const MAX_HYPOTHESES: usize = 200;
 
 /// Reads, parses and validates an analysis file.
-pub fn load(path: &Path) -> Result<AnalysisFile> {
+pub(crate) fn load(path: &Path) -> Result<AnalysisFile> {
     let bytes = std::fs::read(path).map_err(|e| {
         Failure::io("read the analysis file", path, &e)
             .help("check the path; analysis files usually live in analyses/")
@@ -116,7 +116,7 @@ fn unknown_key_help(msg: &str) -> Option<String> {
 }
 
 /// Levenshtein distance (common practice, Wagner–Fischer dynamic programme).
-pub fn edit_distance(a: &str, b: &str) -> usize {
+pub(crate) fn edit_distance(a: &str, b: &str) -> usize {
     let b: Vec<char> = b.chars().collect();
     let mut prev: Vec<usize> = (0..=b.len()).collect();
     for (i, ca) in a.chars().enumerate() {

@@ -12,13 +12,13 @@ use pulldown_cmark::{html, CowStr, Event, Options, Parser, Tag, TagEnd};
 use std::collections::BTreeMap;
 
 /// The Markdown options every document is rendered with: tables, nothing else.
-pub fn options() -> Options {
+pub(crate) fn options() -> Options {
     Options::ENABLE_TABLES
 }
 
 /// Escapes text for inline Markdown: every character that could start
 /// markup is backslash-escaped, and line breaks become spaces.
-pub fn escape(text: &str) -> String {
+pub(crate) fn escape(text: &str) -> String {
     let mut out = String::with_capacity(text.len() + 8);
     let mut at_start = true;
     let mut chars = text.chars().peekable();
@@ -72,7 +72,7 @@ fn opens_block(c: char, next: Option<char>) -> bool {
 
 /// Escapes multi-paragraph text: paragraphs (separated by blank lines) are
 /// kept, each escaped as inline text.
-pub fn escape_paragraphs(text: &str) -> String {
+pub(crate) fn escape_paragraphs(text: &str) -> String {
     text.split("\n\n")
         .map(str::trim)
         .filter(|p| !p.is_empty())
@@ -84,7 +84,7 @@ pub fn escape_paragraphs(text: &str) -> String {
 /// Converts Markdown to an HTML fragment. Raw HTML is shown as text; an
 /// image whose destination is a key of `figures` becomes that inline SVG
 /// inside a `<figure>`; any other image becomes its alt text.
-pub fn to_html(markdown: &str, figures: &BTreeMap<String, String>) -> String {
+pub(crate) fn to_html(markdown: &str, figures: &BTreeMap<String, String>) -> String {
     let mut events: Vec<Event> = Vec::new();
     let mut image: Option<(String, String)> = None;
     for ev in Parser::new_ext(markdown, options()) {
@@ -125,7 +125,7 @@ fn figure_event<'a>(dest: &str, alt: &str, figures: &BTreeMap<String, String>) -
 
 /// An SVG document made fit for inlining: the XML namespace attribute is
 /// dropped (HTML parsers supply it) so no URL appears in the page.
-pub fn inline_svg(svg: &str) -> String {
+pub(crate) fn inline_svg(svg: &str) -> String {
     svg.replacen(" xmlns=\"http://www.w3.org/2000/svg\"", "", 1)
 }
 

@@ -10,13 +10,13 @@
 //! Markdown; HTML is produced from the Markdown (see [`markdown`]), so both
 //! outputs say the same thing.
 
-pub mod markdown;
+pub(crate) mod markdown;
 mod markdown_report;
 mod plan_doc;
 mod results_json;
 mod svg;
-pub mod values;
-pub mod view;
+pub(crate) mod values;
+pub(crate) mod view;
 
 use crate::error::{Failure, Result};
 use crate::results::Results;

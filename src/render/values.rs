@@ -26,7 +26,7 @@ const DIGITS: [&str; 10] = [
 
 /// Turns any text into a run of ASCII letters: digits become words, other
 /// characters separate words and are dropped, each word is capitalised.
-pub fn letters(text: &str) -> String {
+pub(crate) fn letters(text: &str) -> String {
     let mut out = String::new();
     let mut new_word = true;
     for ch in text.chars() {
@@ -48,20 +48,20 @@ pub fn letters(text: &str) -> String {
 }
 
 /// The macro name for one figure.
-pub fn name(analysis: &str, id: &str, figure: &str) -> String {
+pub(crate) fn name(analysis: &str, id: &str, figure: &str) -> String {
     format!("{}{}{}", letters(analysis), letters(id), letters(figure))
 }
 
 /// A set of named values that refuses collisions.
 #[derive(Default)]
-pub struct Values {
+pub(crate) struct Values {
     map: BTreeMap<String, (String, String)>,
 }
 
 impl Values {
     /// Adds a value under `name`; `origin` says where it came from, for
     /// the collision message.
-    pub fn add(&mut self, name: String, origin: String, markdown: String) -> Result<()> {
+    pub(crate) fn add(&mut self, name: String, origin: String, markdown: String) -> Result<()> {
         if name.is_empty() || !name.chars().all(|c| c.is_ascii_alphabetic()) {
             return Err(Failure::input(format!(
                 "{origin} gives the value name \"{name}\", which has no letters to use"
@@ -77,12 +77,12 @@ impl Values {
     }
 
     /// Names and Markdown values, sorted by name.
-    pub fn iter(&self) -> impl Iterator<Item = (&str, &str)> {
+    pub(crate) fn iter(&self) -> impl Iterator<Item = (&str, &str)> {
         self.map.iter().map(|(k, (_, v))| (k.as_str(), v.as_str()))
     }
 
     /// `values.tex`: one `\newcommand` per value.
-    pub fn to_tex(&self, title: &str) -> String {
+    pub(crate) fn to_tex(&self, title: &str) -> String {
         let mut s = String::from(
             "% Named values written by attest; regenerate with `attest run`, do not edit.\n",
         );
@@ -100,7 +100,7 @@ impl Values {
     }
 
     /// `values.json`: names mapped to the Markdown strings.
-    pub fn to_json(&self) -> String {
+    pub(crate) fn to_json(&self) -> String {
         let m: BTreeMap<&str, &str> = self.iter().collect();
         let mut s = serde_json::to_string_pretty(&m).expect("strings always serialise");
         s.push('\n');
@@ -109,7 +109,7 @@ impl Values {
 }
 
 /// Escapes text for LaTeX's text mode.
-pub fn latex_escape(text: &str) -> String {
+pub(crate) fn latex_escape(text: &str) -> String {
     let mut s = String::with_capacity(text.len());
     for ch in text.chars() {
         match ch {
@@ -140,7 +140,7 @@ pub fn latex_escape(text: &str) -> String {
 }
 
 /// Converts Markdown inline text (emphasis and plain text) to LaTeX.
-pub fn markdown_to_latex(md: &str) -> String {
+pub(crate) fn markdown_to_latex(md: &str) -> String {
     let mut s = String::new();
     for ev in Parser::new(md) {
         match ev {
@@ -170,7 +170,7 @@ impl super::Renderer for NamedValues {
 }
 
 /// Builds the named values of a run from its results.
-pub fn from_results(r: &Results) -> Result<Values> {
+pub(crate) fn from_results(r: &Results) -> Result<Values> {
     let stem = r
         .analysis_file
         .strip_suffix(".toml")
@@ -250,7 +250,7 @@ fn bare_statistic(h: &HypothesisResult) -> String {
 }
 
 /// Plain text for the terminal: Markdown emphasis removed.
-pub fn plain(markdown: &str) -> String {
+pub(crate) fn plain(markdown: &str) -> String {
     let mut s = String::new();
     for ev in Parser::new(markdown) {
         match ev {

@@ -40,7 +40,7 @@ pub struct Descriptives {
 /// Two-sided t interval for the mean at `level`:
 /// mean ± t(½ + level/2; n − 1)·SE (Student 1908; common practice). None
 /// when the SE is undefined or zero.
-pub fn mean_interval(d: &Descriptives, level: f64) -> Option<[f64; 2]> {
+pub(crate) fn mean_interval(d: &Descriptives, level: f64) -> Option<[f64; 2]> {
     d.se.filter(|se| *se > 0.0).map(|se| {
         let q = super::dist::t_quantile(0.5 + level / 2.0, (d.n - 1) as f64);
         [d.mean - q * se, d.mean + q * se]
@@ -58,7 +58,7 @@ pub fn describe(x: &[f64]) -> Result<Descriptives, StatsError> {
 
 /// Describes a sample whose sorted copy the caller already has (the rank
 /// tests sort anyway, so a run sorts each group once).
-pub fn describe_sorted(x: &[f64], sorted: &[f64]) -> Result<Descriptives, StatsError> {
+pub(crate) fn describe_sorted(x: &[f64], sorted: &[f64]) -> Result<Descriptives, StatsError> {
     let n = x.len();
     if n == 0 {
         return Err(StatsError::TooFew { needed: 1, got: 0 });
@@ -129,7 +129,7 @@ fn shape(n: f64, m2: f64, m3: f64, m4: f64) -> (Option<f64>, Option<f64>) {
 /// Arithmetic mean by two passes: the naive mean, then the mean of the
 /// residuals added back (a cheap correction that keeps NumAcc-type data
 /// exact to rounding).
-pub fn mean(x: &[f64]) -> f64 {
+pub(crate) fn mean(x: &[f64]) -> f64 {
     let n = x.len() as f64;
     let m0 = x.iter().sum::<f64>() / n;
     let r = x.iter().map(|v| v - m0).sum::<f64>() / n;
@@ -137,7 +137,7 @@ pub fn mean(x: &[f64]) -> f64 {
 }
 
 /// Sample variance with denominator n − 1 (two-pass, corrected). `None` for n < 2.
-pub fn variance(x: &[f64]) -> Option<f64> {
+pub(crate) fn variance(x: &[f64]) -> Option<f64> {
     let n = x.len();
     if n < 2 {
         return None;
@@ -153,7 +153,7 @@ pub fn variance(x: &[f64]) -> Option<f64> {
 }
 
 /// Quantile of a sorted sample by linear interpolation (Hyndman & Fan type 7).
-pub fn quantile_sorted(sorted: &[f64], p: f64) -> f64 {
+pub(crate) fn quantile_sorted(sorted: &[f64], p: f64) -> f64 {
     let n = sorted.len();
     if n == 1 {
         return sorted[0];
@@ -173,7 +173,7 @@ pub fn quantile_sorted(sorted: &[f64], p: f64) -> f64 {
 }
 
 /// Median of a sample (sorts a copy unless it is sorted already).
-pub fn median(x: &[f64]) -> f64 {
+pub(crate) fn median(x: &[f64]) -> f64 {
     quantile_sorted(&super::sorted(x), 0.5)
 }
 

@@ -8,30 +8,29 @@
 //! own inverse functions are never called with user-derived input.
 
 use statrs::function::beta::checked_beta_reg;
-use statrs::function::gamma::gamma_ur;
 
 const SQRT_2: f64 = std::f64::consts::SQRT_2;
 
 /// The regularised incomplete beta function I_x(a, b), or NaN where statrs
 /// would panic (x outside [0, 1] or NaN, a or b not positive). Found by
 /// fuzzing: t = ±inf or overflowing t² made x = NaN.
-pub fn beta_reg(a: f64, b: f64, x: f64) -> f64 {
+pub(crate) fn beta_reg(a: f64, b: f64, x: f64) -> f64 {
     checked_beta_reg(a, b, x).unwrap_or(f64::NAN)
 }
 
 /// Standard normal lower tail `P(Z ≤ z)`, through `erfc` for full relative
 /// accuracy in both tails (libm's erfc, after Sun's fdlibm).
-pub fn normal_cdf(z: f64) -> f64 {
+pub(crate) fn normal_cdf(z: f64) -> f64 {
     0.5 * libm::erfc(-z / SQRT_2)
 }
 
 /// Standard normal upper tail `P(Z ≥ z)`.
-pub fn normal_sf(z: f64) -> f64 {
+pub(crate) fn normal_sf(z: f64) -> f64 {
     0.5 * libm::erfc(z / SQRT_2)
 }
 
 /// Standard normal density.
-pub fn normal_pdf(z: f64) -> f64 {
+pub(crate) fn normal_pdf(z: f64) -> f64 {
     (-0.5 * z * z).exp() / (2.0 * std::f64::consts::PI).sqrt()
 }
 
@@ -39,7 +38,7 @@ pub fn normal_pdf(z: f64) -> f64 {
 ///
 /// Wichura (1988), Algorithm AS 241 (PPND16), accurate to about 1e-16,
 /// followed by one Newton step on the smaller tail.
-pub fn normal_quantile(p: f64) -> f64 {
+pub(crate) fn normal_quantile(p: f64) -> f64 {
     if p.is_nan() || p <= 0.0 {
         return f64::NEG_INFINITY;
     }
@@ -164,7 +163,7 @@ fn as241(p: f64) -> f64 {
 /// in the tail it is `½·I_{df/(df+t²)}(df/2, ½)`, near zero
 /// `½ − ½·I_{t²/(df+t²)}(½, df/2)`; the switch happens before the
 /// subtraction could cancel, so neither side loses relative accuracy.
-pub fn t_sf(t: f64, df: f64) -> f64 {
+pub(crate) fn t_sf(t: f64, df: f64) -> f64 {
     if t.is_nan() || df.is_nan() || df <= 0.0 {
         return f64::NAN;
     }
@@ -194,12 +193,12 @@ pub fn t_sf(t: f64, df: f64) -> f64 {
 }
 
 /// Student t lower tail `P(T ≤ t)`.
-pub fn t_cdf(t: f64, df: f64) -> f64 {
+pub(crate) fn t_cdf(t: f64, df: f64) -> f64 {
     t_sf(-t, df)
 }
 
 /// Student t quantile: the `t` with `P(T ≤ t) = p`, `p` in (0, 1).
-pub fn t_quantile(p: f64, df: f64) -> f64 {
+pub(crate) fn t_quantile(p: f64, df: f64) -> f64 {
     if p.is_nan() || df.is_nan() || df <= 0.0 {
         return f64::NAN;
     }
@@ -236,7 +235,7 @@ fn t_upper_quantile(q: f64, df: f64) -> f64 {
 }
 
 /// F distribution upper tail `P(F ≥ f)` with `d1`, `d2` degrees of freedom.
-pub fn f_sf(f: f64, d1: f64, d2: f64) -> f64 {
+pub(crate) fn f_sf(f: f64, d1: f64, d2: f64) -> f64 {
     if f.is_nan() || d1 <= 0.0 || d2 <= 0.0 {
         return f64::NAN;
     }
@@ -251,27 +250,13 @@ pub fn f_sf(f: f64, d1: f64, d2: f64) -> f64 {
     beta_reg(0.5 * d2, 0.5 * d1, x)
 }
 
-/// Chi-square upper tail `P(X ≥ x)` with `k` degrees of freedom.
-pub fn chi2_sf(x: f64, k: f64) -> f64 {
-    if x.is_nan() || k <= 0.0 {
-        return f64::NAN;
-    }
-    if x <= 0.0 {
-        return 1.0;
-    }
-    if x.is_infinite() {
-        return 0.0;
-    }
-    gamma_ur(0.5 * k, 0.5 * x)
-}
-
 /// Finds a root of `f` in `[a, b]` where `f(a)` and `f(b)` differ in sign.
 ///
 /// Brent (1973), *Algorithms for Minimization without Derivatives*, ch. 4
 /// (the `zero` procedure): inverse quadratic interpolation safeguarded by
 /// bisection, so it always converges. Returns `None` if `[a, b]` does not
 /// bracket a root. `tol` is a relative tolerance on the abscissa.
-pub fn brent(f: impl Fn(f64) -> f64, a: f64, b: f64, tol: f64) -> Option<f64> {
+pub(crate) fn brent(f: impl Fn(f64) -> f64, a: f64, b: f64, tol: f64) -> Option<f64> {
     let (mut a, mut b) = (a, b);
     let (mut fa, mut fb) = (f(a), f(b));
     if fa.is_nan() || fb.is_nan() {

@@ -92,7 +92,7 @@ pub fn hedges_g(x: &[f64], y: &[f64], alt: Alternative, level: f64) -> Result<Ef
 
 /// Hedges' g from an already computed Cohen's d of `total` values: d and
 /// its interval bounds times [`hedges_correction`]. Needs `total ≥ 4`.
-pub fn hedges_from_d(d: &Effect, total: usize) -> Result<Effect, StatsError> {
+pub(crate) fn hedges_from_d(d: &Effect, total: usize) -> Result<Effect, StatsError> {
     if total < 4 {
         return Err(StatsError::TooFew {
             needed: 4,

@@ -380,7 +380,7 @@ pub fn kth_pairwise_difference(x: &[f64], y: &[f64], k: usize) -> Option<f64> {
 }
 
 /// As [`kth_pairwise_difference`], for inputs already sorted ascending.
-pub fn kth_pairwise_difference_sorted(x: &[f64], y: &[f64], k: usize) -> Option<f64> {
+pub(crate) fn kth_pairwise_difference_sorted(x: &[f64], y: &[f64], k: usize) -> Option<f64> {
     select(&Differences { x, y }, k)
 }
 
@@ -392,7 +392,7 @@ pub fn kth_walsh_average(d: &[f64], k: usize) -> Option<f64> {
 }
 
 /// As [`kth_walsh_average`], for input already sorted ascending.
-pub fn kth_walsh_average_sorted(d: &[f64], k: usize) -> Option<f64> {
+pub(crate) fn kth_walsh_average_sorted(d: &[f64], k: usize) -> Option<f64> {
     select(&Walsh { d }, k)
 }
 
@@ -419,7 +419,7 @@ pub fn hl_shift(x: &[f64], y: &[f64]) -> Result<f64, StatsError> {
 }
 
 /// As [`hl_shift`], for finite inputs already sorted ascending.
-pub fn hl_shift_sorted(x: &[f64], y: &[f64]) -> Result<f64, StatsError> {
+pub(crate) fn hl_shift_sorted(x: &[f64], y: &[f64]) -> Result<f64, StatsError> {
     let count = x.len().saturating_mul(y.len());
     median_of(&Differences { x, y }, count).ok_or(StatsError::TooFew { needed: 1, got: 0 })
 }
@@ -432,7 +432,7 @@ pub fn hl_one_sample(d: &[f64]) -> Result<f64, StatsError> {
 }
 
 /// As [`hl_one_sample`], for finite input already sorted ascending.
-pub fn hl_one_sample_sorted(d: &[f64]) -> Result<f64, StatsError> {
+pub(crate) fn hl_one_sample_sorted(d: &[f64]) -> Result<f64, StatsError> {
     let n = d.len();
     median_of(&Walsh { d }, n * (n + 1) / 2).ok_or(StatsError::TooFew { needed: 1, got: 0 })
 }

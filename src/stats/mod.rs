@@ -7,7 +7,7 @@
 //! algorithm next to its citation and its tests.
 
 pub mod describe;
-pub mod dist;
+pub(crate) mod dist;
 pub mod effect;
 pub mod equivalence;
 pub mod hodges_lehmann;
@@ -16,9 +16,9 @@ pub mod multiplicity;
 pub mod nct;
 pub mod normality;
 pub mod power;
-pub mod rank_exact;
-pub mod rank_tests;
-pub mod ranks;
+pub(crate) mod rank_exact;
+pub(crate) mod rank_tests;
+pub(crate) mod ranks;
 pub mod spread;
 pub mod ttest;
 pub mod wilcoxon;
@@ -49,7 +49,7 @@ impl Alternative {
     }
 
     /// The plain name used in plans and results (`two-sided`, `greater`, `less`).
-    pub fn as_str(self) -> &'static str {
+    pub(crate) fn as_str(self) -> &'static str {
         match self {
             Alternative::TwoSided => "two-sided",
             Alternative::Greater => "greater",
@@ -88,7 +88,7 @@ impl Decision {
     /// when p < α (a p equal to α, which exact rank tests can give, is
     /// retained; common practice, and the rule the intervals follow: the
     /// interval excludes the null exactly when p < α).
-    pub fn at(p: f64, alpha: f64) -> Decision {
+    pub(crate) fn at(p: f64, alpha: f64) -> Decision {
         if p < alpha {
             Decision::Reject
         } else {
@@ -97,7 +97,7 @@ impl Decision {
     }
 
     /// Whether the null was rejected.
-    pub fn rejected(self) -> bool {
+    pub(crate) fn rejected(self) -> bool {
         self == Decision::Reject
     }
 }
@@ -158,7 +158,7 @@ pub enum StatsError {
 
 /// `x` in ascending (total) order: borrowed when it already is, which the
 /// analysis arranges for large samples, otherwise a sorted copy.
-pub fn sorted(x: &[f64]) -> std::borrow::Cow<'_, [f64]> {
+pub(crate) fn sorted(x: &[f64]) -> std::borrow::Cow<'_, [f64]> {
     if x.is_sorted_by(|a, b| a.total_cmp(b).is_le()) {
         std::borrow::Cow::Borrowed(x)
     } else {
@@ -169,7 +169,7 @@ pub fn sorted(x: &[f64]) -> std::borrow::Cow<'_, [f64]> {
 }
 
 /// Checks that every value is finite.
-pub fn ensure_finite(x: &[f64]) -> Result<(), StatsError> {
+pub(crate) fn ensure_finite(x: &[f64]) -> Result<(), StatsError> {
     if x.iter().all(|v| v.is_finite()) {
         Ok(())
     } else {
@@ -180,7 +180,11 @@ pub fn ensure_finite(x: &[f64]) -> Result<(), StatsError> {
 /// The one-sided tail probability `P(T ≥ t)`/`P(T ≤ t)` or the two-sided
 /// `2·min(…)` for a symmetric reference distribution, from its survival
 /// function `sf`. Upper tails are computed directly, never as `1 − cdf`.
-pub fn p_from_symmetric(stat: f64, alternative: Alternative, sf: impl Fn(f64) -> f64) -> f64 {
+pub(crate) fn p_from_symmetric(
+    stat: f64,
+    alternative: Alternative,
+    sf: impl Fn(f64) -> f64,
+) -> f64 {
     let p = match alternative {
         Alternative::Greater => sf(stat),
         Alternative::Less => sf(-stat),

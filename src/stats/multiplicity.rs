@@ -29,7 +29,7 @@ pub enum Correction {
 
 impl Correction {
     /// The plain name used in plans and results.
-    pub fn as_str(self) -> &'static str {
+    pub(crate) fn as_str(self) -> &'static str {
         match self {
             Correction::None => "none",
             Correction::Bonferroni => "bonferroni",

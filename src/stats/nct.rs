@@ -368,7 +368,7 @@ fn gauss_kronrod(f: &impl Fn(f64) -> f64, a: f64, b: f64) -> (f64, f64) {
 /// `(None, None)` for invalid input (non-finite t, df ≤ 0, level outside
 /// (0, 1)). The bracket is widened from t_obs until it straddles the root,
 /// which always exists because the tails are monotone in δ.
-pub fn ncp_bounds(
+pub(crate) fn ncp_bounds(
     t_obs: f64,
     df: f64,
     alternative: Alternative,

@@ -30,9 +30,9 @@ pub struct ShapiroWilk {
 }
 
 /// Smallest sample size the approximation covers.
-pub const MIN_N: usize = 3;
+pub(crate) const MIN_N: usize = 3;
 /// Largest sample size the approximation covers (Royston 1995).
-pub const MAX_N: usize = 5000;
+pub(crate) const MAX_N: usize = 5000;
 const SMALL: f64 = 1e-19;
 
 fn poly(c: &[f64], x: f64) -> f64 {

@@ -31,7 +31,7 @@ use super::{Alternative, StatsError};
 
 /// Largest planned size per group that the searches consider (10⁷).
 /// A target that needs more is reported as [`StatsError::OutOfRange`].
-pub const N_MAX: usize = 10_000_000;
+pub(crate) const N_MAX: usize = 10_000_000;
 
 /// Asymptotic relative efficiency of the Mann–Whitney and Wilcoxon
 /// signed-rank tests against the t test when the data are **normal**:
@@ -44,7 +44,7 @@ pub const ARE_NORMAL: f64 = 3.0 / std::f64::consts::PI;
 /// the t test over **all** continuous shift families, 108/125 = 0.864
 /// (Hodges & Lehmann 1956, same paper). Planning with it is the
 /// conservative choice when the shape of the data is unknown.
-pub const ARE_MIN: f64 = 0.864;
+pub(crate) const ARE_MIN: f64 = 0.864;
 
 /// The shape of the planned comparison.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -77,7 +77,7 @@ pub struct SampleSize {
 /// ratio 1.1 with n₁ = 10 gives 11 and not 12 from the rounding of 1.1.
 /// Never below 1. Errors: ratio not finite and positive (`BadParameter`),
 /// n₂ above [`N_MAX`] (`OutOfRange`).
-pub fn second_group_size(n1: usize, ratio: f64) -> Result<usize, StatsError> {
+pub(crate) fn second_group_size(n1: usize, ratio: f64) -> Result<usize, StatsError> {
     if !(ratio.is_finite() && ratio > 0.0) {
         return Err(StatsError::BadParameter(
             "group size ratio must be a positive finite number",
@@ -97,7 +97,7 @@ pub fn second_group_size(n1: usize, ratio: f64) -> Result<usize, StatsError> {
 }
 
 /// The group sizes a design implies for a planned n₁: `[n₁, n₂]` or `[n₁]`.
-pub fn group_sizes(design: PowerDesign, n1: usize) -> Result<Vec<usize>, StatsError> {
+pub(crate) fn group_sizes(design: PowerDesign, n1: usize) -> Result<Vec<usize>, StatsError> {
     match design {
         PowerDesign::Independent { ratio } => Ok(vec![n1, second_group_size(n1, ratio)?]),
         PowerDesign::Paired | PowerDesign::OneSample => Ok(vec![n1]),
@@ -326,7 +326,7 @@ pub fn n_for_power(
 /// two-sided and `Greater` alternatives and negative for `Less`, i.e. it
 /// points in the tested direction. Errors as for [`power`], plus a target
 /// outside (α, 1).
-pub fn min_detectable_effect(
+pub(crate) fn min_detectable_effect(
     design: PowerDesign,
     n1: usize,
     target_power: f64,

@@ -23,14 +23,14 @@
 //! Wilcoxon exact needs n ≤ 120 (2ⁿ fits u128), under 1 ms.
 
 /// Largest n1·n2 for which the exact U distribution is used.
-pub const MW_EXACT_MAX_CELLS: usize = 250_000;
+pub(crate) const MW_EXACT_MAX_CELLS: usize = 250_000;
 /// Largest log2 C(n1+n2, n1) for which the exact U distribution is used.
-pub const MW_EXACT_MAX_LOG2_ARRANGEMENTS: f64 = 120.0;
+pub(crate) const MW_EXACT_MAX_LOG2_ARRANGEMENTS: f64 = 120.0;
 /// Largest number of non-zero differences for the exact W+ distribution.
-pub const WILCOXON_EXACT_MAX_N: usize = 120;
+pub(crate) const WILCOXON_EXACT_MAX_N: usize = 120;
 
 /// An exact null distribution over the integers `0..=max` as counts.
-pub struct ExactDistribution {
+pub(crate) struct ExactDistribution {
     /// Cumulative counts: `cum[v]` = number of arrangements with statistic ≤ v.
     cum: Vec<u128>,
 }
@@ -52,7 +52,7 @@ impl ExactDistribution {
     }
 
     /// `P(S ≤ s)`, for any real `s`.
-    pub fn cdf(&self, s: f64) -> f64 {
+    pub(crate) fn cdf(&self, s: f64) -> f64 {
         if s < 0.0 {
             return 0.0;
         }
@@ -61,7 +61,7 @@ impl ExactDistribution {
     }
 
     /// `P(S ≥ s)`, counted directly from the upper tail, for any real `s`.
-    pub fn sf(&self, s: f64) -> f64 {
+    pub(crate) fn sf(&self, s: f64) -> f64 {
         let v = s.ceil();
         if v <= 0.0 {
             return 1.0;
@@ -76,7 +76,7 @@ impl ExactDistribution {
     /// The largest `k` with `P(S ≤ k − 1) ≤ tail`: the 1-based order
     /// statistic that bounds a distribution-free interval (0 when even the
     /// most extreme value is more likely than `tail`).
-    pub fn critical_k(&self, tail: f64) -> usize {
+    pub(crate) fn critical_k(&self, tail: f64) -> usize {
         let total = self.total() as f64;
         self.cum
             .iter()
@@ -86,7 +86,7 @@ impl ExactDistribution {
 }
 
 /// Whether the exact U distribution is used for group sizes `m`, `n`.
-pub fn mw_exact_feasible(m: usize, n: usize) -> bool {
+pub(crate) fn mw_exact_feasible(m: usize, n: usize) -> bool {
     if m == 0 || n == 0 || m.saturating_mul(n) > MW_EXACT_MAX_CELLS {
         return false;
     }
@@ -97,7 +97,7 @@ pub fn mw_exact_feasible(m: usize, n: usize) -> bool {
 
 /// Exact null distribution of U for group sizes `m`, `n` (no ties), or
 /// `None` outside the limits of [`mw_exact_feasible`].
-pub fn mann_whitney_exact(m: usize, n: usize) -> Option<ExactDistribution> {
+pub(crate) fn mann_whitney_exact(m: usize, n: usize) -> Option<ExactDistribution> {
     if !mw_exact_feasible(m, n) {
         return None;
     }
@@ -122,7 +122,7 @@ pub fn mann_whitney_exact(m: usize, n: usize) -> Option<ExactDistribution> {
 
 /// Exact null distribution of W+ for `n` untied non-zero differences, or
 /// `None` when `n` is 0 or above [`WILCOXON_EXACT_MAX_N`].
-pub fn wilcoxon_exact(n: usize) -> Option<ExactDistribution> {
+pub(crate) fn wilcoxon_exact(n: usize) -> Option<ExactDistribution> {
     if n == 0 || n > WILCOXON_EXACT_MAX_N {
         return None;
     }

@@ -134,7 +134,13 @@ pub(crate) fn order_interval(
 /// separation still gets an interval of positive width. This is an
 /// approximation: it uses the null variance, so away from 0 coverage is
 /// only approximate.
-pub fn fisher_interval(r: f64, se: f64, bound: f64, alt: Alternative, level: f64) -> Interval {
+pub(crate) fn fisher_interval(
+    r: f64,
+    se: f64,
+    bound: f64,
+    alt: Alternative,
+    level: f64,
+) -> Interval {
     let z = -normal_quantile(tail_alpha(level, alt));
     let center = r.clamp(-bound, bound).atanh();
     let low = (alt != Alternative::Less).then(|| (center - z * se).tanh());

@@ -50,7 +50,7 @@ pub(crate) fn check_level(level: f64) -> Result<(), StatsError> {
 /// The t statistic, p value and interval from an estimate, its standard
 /// error and df. The interval uses the `level` quantile for one-sided
 /// alternatives and the `(1 + level)/2` quantile for two-sided ones.
-pub fn from_estimate(
+pub(crate) fn from_estimate(
     estimate: f64,
     se: f64,
     df: f64,

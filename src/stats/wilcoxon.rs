@@ -18,7 +18,7 @@ use super::{ensure_finite, Alternative, PMethod, StatsError};
 
 /// W+ (sum of the midranks of |d| over positive d), the number of
 /// non-zero differences and the tie term Σ(t³ − t) of their |d|.
-pub fn signed_rank_sum(d: &[f64]) -> (f64, usize, f64) {
+pub(crate) fn signed_rank_sum(d: &[f64]) -> (f64, usize, f64) {
     let mut a: Vec<(f64, bool)> = d
         .iter()
         .filter(|&&v| v != 0.0)

@@ -8,11 +8,11 @@
 //! every output, Markdown and HTML alike, so the two never disagree.
 
 /// The true minus sign, U+2212.
-pub const MINUS: char = '\u{2212}';
+pub(crate) const MINUS: char = '\u{2212}';
 
 /// A number with `decimals` digits after the point, a true minus sign for
 /// negatives, and no "−0.00" (a value that rounds to zero has no sign).
-pub fn fixed(x: f64, decimals: usize) -> String {
+pub(crate) fn fixed(x: f64, decimals: usize) -> String {
     if x.is_nan() {
         return "not defined".into();
     }
@@ -33,13 +33,13 @@ pub fn fixed(x: f64, decimals: usize) -> String {
 }
 
 /// Most figures: two decimals (means, SDs, test statistics, d).
-pub fn two(x: f64) -> String {
+pub(crate) fn two(x: f64) -> String {
     fixed(x, 2)
 }
 
 /// A value that cannot exceed 1 in magnitude (correlation, rank-biserial
 /// r, probability): no zero before the decimal point.
-pub fn bounded(x: f64, decimals: usize) -> String {
+pub(crate) fn bounded(x: f64, decimals: usize) -> String {
     let s = fixed(x, decimals);
     if let Some(rest) = s.strip_prefix("0.") {
         format!(".{rest}")
@@ -52,7 +52,7 @@ pub fn bounded(x: f64, decimals: usize) -> String {
 
 /// Degrees of freedom: whole numbers for Student's, paired and one-sample
 /// t-tests; two decimals for Welch's fractional df.
-pub fn df(df: f64, fractional: bool) -> String {
+pub(crate) fn df(df: f64, fractional: bool) -> String {
     if fractional {
         two(df)
     } else {
@@ -63,7 +63,7 @@ pub fn df(df: f64, fractional: bool) -> String {
 /// A p value without the "p =" part: exact to three decimals without a
 /// leading zero, `< .001` below .001. Values that round to 1 are written
 /// `> .999` (common practice; the manual only says p cannot exceed 1).
-pub fn p_number(p: f64) -> String {
+pub(crate) fn p_number(p: f64) -> String {
     if p < 0.001 {
         "< .001".into()
     } else if p >= 0.9995 {
@@ -74,7 +74,7 @@ pub fn p_number(p: f64) -> String {
 }
 
 /// The p clause as it reads in text: `*p* = .046` or `*p* < .001`.
-pub fn p_clause(p: f64) -> String {
+pub(crate) fn p_clause(p: f64) -> String {
     let n = p_number(p);
     if n.starts_with('<') || n.starts_with('>') {
         format!("{} {n}", sym("p"))
@@ -84,12 +84,12 @@ pub fn p_clause(p: f64) -> String {
 }
 
 /// A statistical symbol in italics (Markdown emphasis).
-pub fn sym(symbol: &str) -> String {
+pub(crate) fn sym(symbol: &str) -> String {
     format!("*{symbol}*")
 }
 
 /// A confidence level as a percentage: 0.95 → "95%", 0.975 → "97.5%".
-pub fn level(confidence: f64) -> String {
+pub(crate) fn level(confidence: f64) -> String {
     let pct = confidence * 100.0;
     let one = format!("{pct:.1}");
     match one.strip_suffix(".0") {
@@ -100,7 +100,7 @@ pub fn level(confidence: f64) -> String {
 
 /// An interval's bounds: `[1.23, 4.56]`; an open side is written as
 /// `−∞`/`∞` with a round bracket, since infinity is never included.
-pub fn bounds(low: Option<f64>, high: Option<f64>, fmt: impl Fn(f64) -> String) -> String {
+pub(crate) fn bounds(low: Option<f64>, high: Option<f64>, fmt: impl Fn(f64) -> String) -> String {
     let l = match low {
         Some(v) => format!("[{}", fmt(v)),
         None => format!("({MINUS}∞"),
@@ -113,7 +113,7 @@ pub fn bounds(low: Option<f64>, high: Option<f64>, fmt: impl Fn(f64) -> String) 
 }
 
 /// An interval with its level: `95% CI [1.23, 4.56]`.
-pub fn ci(
+pub(crate) fn ci(
     confidence: f64,
     low: Option<f64>,
     high: Option<f64>,
@@ -124,13 +124,13 @@ pub fn ci(
 
 /// The sidedness note: "one-sided" for a directional test, nothing for a
 /// two-sided one (two-sided is what readers assume).
-pub fn sidedness(one_sided: bool) -> Option<&'static str> {
+pub(crate) fn sidedness(one_sided: bool) -> Option<&'static str> {
     one_sided.then_some("one-sided")
 }
 
 /// A rank statistic (U, W+): a whole number when it is one, otherwise one
 /// decimal (ties give halves; common practice).
-pub fn rank_statistic(x: f64) -> String {
+pub(crate) fn rank_statistic(x: f64) -> String {
     if (x - x.round()).abs() < 1e-9 {
         fixed(x.round(), 0)
     } else {

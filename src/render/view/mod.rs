@@ -10,9 +10,9 @@
 //! template's auto-escaping. Every renderer (Markdown, HTML, SVG, named
 //! values) is fed the same [`ReportView`] next to the raw model.
 
-pub mod apa;
-pub mod planning;
-pub mod sentence;
+pub(crate) mod apa;
+pub(crate) mod planning;
+pub(crate) mod sentence;
 
 use self::apa::{sym, two};
 use self::sentence::method_name;

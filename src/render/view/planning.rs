@@ -24,7 +24,7 @@ fn per_group(n: &[usize], design: Design) -> String {
 }
 
 /// The standardised effect a sample-size plan is stated in.
-pub fn effect_symbol(design: Design) -> &'static str {
+pub(crate) fn effect_symbol(design: Design) -> &'static str {
     match design {
         Design::Paired => "*d_z*",
         Design::Independent | Design::OneSample => "*d*",
@@ -37,7 +37,12 @@ fn pct(p: f64) -> String {
 
 /// "To detect *d* = 0.40 with 90% power at α = .05, one-sided, 108 per
 /// group are needed (exact power .902)."
-pub fn planned_sentence(p: &Planned, design: Design, alpha: f64, alt: Alternative) -> String {
+pub(crate) fn planned_sentence(
+    p: &Planned,
+    design: Design,
+    alpha: f64,
+    alt: Alternative,
+) -> String {
     let mut s = format!(
         "To detect {} = {} with {} power at α = {}, {}, {} are needed (exact power {} for the t-test)",
         effect_symbol(design),
@@ -56,7 +61,7 @@ pub fn planned_sentence(p: &Planned, design: Design, alpha: f64, alt: Alternativ
 }
 
 /// The answer of `attest power` in one or more plain lines.
-pub fn answer_lines(a: &Answer) -> Vec<String> {
+pub(crate) fn answer_lines(a: &Answer) -> Vec<String> {
     let sym = match a.design {
         Design::Paired => "dz",
         Design::Independent | Design::OneSample => "d",

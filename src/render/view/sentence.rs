@@ -15,7 +15,7 @@ use crate::stats::multiplicity::Correction;
 use crate::stats::Alternative;
 
 /// The plain name of a method as a reader knows it.
-pub fn method_name(method: Method) -> String {
+pub(crate) fn method_name(method: Method) -> String {
     match method {
         Method::StudentT => "Student's t-test",
         Method::WelchT => "Welch's t-test",
@@ -29,7 +29,7 @@ pub fn method_name(method: Method) -> String {
 }
 
 /// What an estimate of the difference is called in sentences and figures.
-pub fn estimate_name(kind: EstimateKind) -> &'static str {
+pub(crate) fn estimate_name(kind: EstimateKind) -> &'static str {
     match kind {
         EstimateKind::MeanDifference => "mean difference",
         EstimateKind::HodgesLehmannShift => "Hodges–Lehmann shift",
@@ -39,7 +39,7 @@ pub fn estimate_name(kind: EstimateKind) -> &'static str {
 
 /// The statistic with its df: `Welch's *t*(97.31) = 2.71`, `*t*(48) = 2.71`,
 /// `Mann–Whitney *U* = 312, *z* = 2.31`, `Wilcoxon *W*+ = 123`.
-pub fn statistic(test: &TestResult) -> String {
+pub(crate) fn statistic(test: &TestResult) -> String {
     let welch = test.method == Method::WelchT;
     let rank = |who: &str, s: String| {
         let mut out = format!("{who} {s} = {}", apa::rank_statistic(test.statistic));
@@ -76,7 +76,7 @@ fn effect_symbol(kind: EffectKind) -> (String, fn(f64) -> String) {
 
 /// An effect size with its symbol and (when computed) its interval:
 /// `*d* = 0.52, 95% CI [0.11, 0.93]`.
-pub fn effect(e: &EffectSize, confidence: f64) -> String {
+pub(crate) fn effect(e: &EffectSize, confidence: f64) -> String {
     let (name, fmt) = effect_symbol(e.name);
     let mut out = format!("{name} = {}", fmt(e.value));
     if e.ci_low.is_some() || e.ci_high.is_some() {
@@ -90,7 +90,7 @@ pub fn effect(e: &EffectSize, confidence: f64) -> String {
 
 /// An effect size with its bounds but no level, for a table whose header
 /// states the level: `*d* = 0.52 [0.11, 0.93]`.
-pub fn effect_with_bounds(e: &EffectSize) -> String {
+pub(crate) fn effect_with_bounds(e: &EffectSize) -> String {
     let (name, fmt) = effect_symbol(e.name);
     let mut out = format!("{name} = {}", fmt(e.value));
     if e.ci_low.is_some() || e.ci_high.is_some() {
@@ -100,7 +100,7 @@ pub fn effect_with_bounds(e: &EffectSize) -> String {
 }
 
 /// An estimate of the difference with its interval and units.
-pub fn estimate(e: &Estimate, units: Option<&str>) -> String {
+pub(crate) fn estimate(e: &Estimate, units: Option<&str>) -> String {
     let u = units.map(|u| format!(" {}", escape(u))).unwrap_or_default();
     format!(
         "{} = {}{u}, {}",
@@ -111,7 +111,7 @@ pub fn estimate(e: &Estimate, units: Option<&str>) -> String {
 }
 
 /// What a correction is called after an adjusted p.
-pub fn correction_name(c: Correction) -> Option<&'static str> {
+pub(crate) fn correction_name(c: Correction) -> Option<&'static str> {
     match c {
         Correction::None => None,
         Correction::Bonferroni => Some("Bonferroni-adjusted"),
@@ -122,7 +122,7 @@ pub fn correction_name(c: Correction) -> Option<&'static str> {
 }
 
 /// The name of a correction method as a reader knows it.
-pub fn correction_method(c: Correction) -> Option<&'static str> {
+pub(crate) fn correction_method(c: Correction) -> Option<&'static str> {
     match c {
         Correction::None => None,
         Correction::Bonferroni => Some("Bonferroni"),
@@ -134,7 +134,7 @@ pub fn correction_method(c: Correction) -> Option<&'static str> {
 
 /// The p clause of a hypothesis: adjusted when a correction applies, with
 /// the sidedness when one-sided.
-pub fn p_of(h: &HypothesisResult, correction: Correction) -> String {
+pub(crate) fn p_of(h: &HypothesisResult, correction: Correction) -> String {
     let mut out = match correction_name(correction) {
         Some(name) => format!("{} ({name})", apa::p_clause(h.p_adjusted)),
         None => apa::p_clause(h.p),
@@ -174,7 +174,7 @@ fn capitalised(s: &str) -> String {
 }
 
 /// The copyable result sentence for one hypothesis.
-pub fn one_sentence(h: &HypothesisResult, correction: Correction) -> String {
+pub(crate) fn one_sentence(h: &HypothesisResult, correction: Correction) -> String {
     if let Some(eq) = &h.equivalence {
         return equivalence_sentence(h, eq);
     }
