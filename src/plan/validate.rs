@@ -913,7 +913,9 @@ impl Checker<'_> {
             if let Some(span) = span {
                 if !used.contains(key) {
                     let (l, c) = line_col(self.text, span.start);
-                    let wide = design == Design::Paired && used.contains(&"first");
+                    let wide = design == Design::Paired
+                        && used.contains(&"first")
+                        && ["levels", "pair_by", "condition"].contains(key);
                     let (what, help) = if wide {
                         (
                             format!(
