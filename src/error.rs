@@ -179,8 +179,7 @@ pub const QUOTE_LIMIT: usize = 60;
 /// [`QUOTE_LIMIT`] characters, the rest replaced by "… (N more characters)".
 pub fn shown(text: &str) -> String {
     let mut out = String::new();
-    let mut count = 0;
-    for ch in text.chars() {
+    for (count, ch) in text.chars().enumerate() {
         if count == QUOTE_LIMIT {
             let rest = text.chars().count() - count;
             out.push_str(&format!("… ({rest} more characters)"));
@@ -191,7 +190,6 @@ pub fn shown(text: &str) -> String {
         } else {
             out.push(ch);
         }
-        count += 1;
     }
     out
 }

@@ -144,7 +144,7 @@ fn suggest_sheet(
             .iter()
             .map(|c| c.to_string().trim().to_string())
             .collect();
-        wanted.iter().all(|w| header.iter().any(|h| *h == w.name))
+        wanted.iter().all(|w| header.contains(&w.name))
     });
     let help = match fits {
         Some(n) => format!(
