@@ -162,6 +162,41 @@ impl std::error::Error for Failure {}
 /// Result type used across the pipeline.
 pub type Result<T, E = Failure> = std::result::Result<T, E>;
 
+/// The most characters of user text an error message quotes.
+pub(crate) const QUOTE_LIMIT: usize = 60;
+
+/// User text as an error message quotes it: control characters (line
+/// breaks, tabs, terminal escapes) written as `\n`, `\u{1b}` and so on so
+/// that nothing from the input can steer the terminal, and at most
+/// [`QUOTE_LIMIT`] characters, the rest replaced by "… (N more characters)".
+pub(crate) fn shown(text: &str) -> String {
+    let mut out = String::new();
+    for (count, ch) in text.chars().enumerate() {
+        if count == QUOTE_LIMIT {
+            let rest = text.chars().count() - count;
+            out.push_str(&format!("… ({rest} more characters)"));
+            return out;
+        }
+        if ch.is_control() {
+            out.extend(ch.escape_default());
+        } else {
+            out.push(ch);
+        }
+    }
+    out
+}
+
+/// Caps a whole message (one that may embed user text the parser quoted)
+/// at a few lines' worth, cutting at a character boundary.
+pub(crate) fn capped_message(msg: &str) -> String {
+    const LIMIT: usize = 300;
+    if msg.chars().count() <= LIMIT {
+        return msg.to_string();
+    }
+    let cut: String = msg.chars().take(LIMIT).collect();
+    format!("{cut}… (message cut)")
+}
+
 /// Converts a byte offset in `source` to a 1-based (line, column); the
 /// column counts characters, not bytes.
 pub(crate) fn line_col(source: &str, offset: usize) -> (usize, usize) {
@@ -194,6 +229,17 @@ mod tests {
             "error: a.toml:3:9: `alpha` must be between 0 and 1\nhelp: write a value such as 0.05"
         );
         assert_eq!(f.kind.exit_code(), 1);
+    }
+
+    #[test]
+    fn shown_caps_and_escapes_user_text() {
+        assert_eq!(shown("n/a"), "n/a");
+        assert_eq!(shown("a\nb\u{1b}[31m"), "a\\nb\\u{1b}[31m");
+        let long = "x".repeat(QUOTE_LIMIT + 40);
+        let s = shown(&long);
+        assert!(s.starts_with(&"x".repeat(QUOTE_LIMIT)), "{s}");
+        assert!(s.ends_with("… (40 more characters)"), "{s}");
+        assert!(capped_message(&"y".repeat(10_000)).chars().count() < 320);
     }
 
     #[test]

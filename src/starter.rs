@@ -50,12 +50,15 @@ pub(crate) fn write(
 }
 
 const HEAD: &str = r##"# A new analysis plan, written by `attest new`. Every line that starts with
-# "#" is a comment for you; attest ignores it.
+# "#" is a comment for you; attest ignores it. Lines that start with "# " and
+# hold `key = value` are optional keys: remove the "# " to use one.
 #
 # Work through it top to bottom, then:
 #   attest check analyses/NAME.toml   (is the plan complete and consistent?)
 #   attest lock analyses/NAME.toml    (seal it BEFORE you look at the data)
 #   attest run analyses/NAME.toml     (later, when the data are in)
+#
+# Every key is explained in docs/guide/reference/analysis-file.md.
 
 # The version of this file format. Leave it at 1.
 attest = 1
@@ -83,17 +86,81 @@ confidence = 0.95
 # fdr-bh, or none.
 correction = "holm"
 
+# Optional: the level of the assumption checks that `method = "checked"`
+# uses to choose a test (default 0.05).
+# check_alpha = 0.05
+
+# Optional: the seed for anything resampled, so reruns give the same
+# numbers (default 1).
+# seed = 1
+
 [data]
 # Your data file, relative to this analysis file. This starter uses one of
 # the invented demo files so that it runs as written; point it at your own.
 "##;
 
+/// How to read the data file: every `[data]` option, commented, with its
+/// default.
+const DATA_OPTIONS: &str = r##"
+# How to read the file. The defaults suit most files; remove the "# " to
+# change one.
+# format = "csv"        # csv, tsv, txt or xlsx; taken from the file's ending when left out
+# delimiter = ","       # the one character between cells; "\t" for tabs (default: "," for csv, a tab for tsv and txt)
+# decimal = "."         # "." or ","; with "," the delimiter must be another character, e.g. ";"
+# missing = ["", "NA", "N/A", "NaN", "."]   # cell texts that mean "no value"; a list you write REPLACES this one, so keep the ones you need
+# sheet = "Sheet1"      # .xlsx only: the worksheet with the data (default: the first)
+"##;
+
+/// Optional hypothesis keys every design can use.
+const COMMON_OPTIONS: &str = r##"
+# Optional: how figures and tables name the outcome, and its unit.
+label = "LABEL"
+units = "UNITS"
+
+# Optional: the other methods for this design are added to the report as
+# robustness checks, marked as not preregistered (default true).
+# robustness = true
+"##;
+
+/// The closing comment on deviations.
+const DEVIATIONS: &str = r##"
+# After the plan is locked, a change you make here still runs, but every
+# output says "ran with deviations from the lock" and lists it. Declare each
+# change and its reason in a block like this (it is not part of the sealed
+# plan):
+# [[deviation]]
+# date = "2026-01-31"
+# change = "alpha from 0.05 to 0.01"
+# reason = "The ethics board asked for a stricter level."
+"##;
+
 fn text(name: &str, design: Design, method: Method) -> String {
-    let (data, hypothesis) = match design {
+    let m = method.as_str();
+    let t_method = matches!(
+        method,
+        Method::StudentT | Method::WelchT | Method::PairedT | Method::OneSampleT
+    );
+    let equivalence = |bounds: &str, unit: &str| {
+        if t_method {
+            format!(
+                r##"
+# Optional: to show that the difference is too small to matter (an
+# equivalence test, two one-sided tests), give the smallest differences that
+# matter, in {unit}, and set `alternative = "two-sided"` (or leave it out):
+# equivalence = {bounds}
+"##
+            )
+        } else {
+            String::new()
+        }
+    };
+    let (data, label, units, hypothesis) = match design {
         Design::Independent => (
             "data/loaves.csv",
+            "Loaf volume",
+            "ml",
             format!(
-                r#"
+                r##"
 [[hypothesis]]
 # A short label for the hypothesis; reports and named values use it.
 id = "H1"
@@ -119,20 +186,17 @@ alternative = "greater"
 # How the groups are compared. welch-t does not assume equal spread and is a
 # sound default; student-t assumes equal spread; mann-whitney compares
 # ranks; checked lets preregistered checks choose.
-method = "{method}"
-
-# Optional: how many units you need, and why.
-# [hypothesis.planning]
-# effect = 0.5      # smallest difference that matters, in SD units (Cohen's d)
-# power = 0.9       # chance of detecting it if it is real
-"#,
-                method = method.as_str()
+method = "{m}"
+{eq}"##,
+                eq = equivalence("[-20, 20]", "ml")
             ),
         ),
         Design::Paired => (
             "data/commute.csv",
+            "Stress rating",
+            "points",
             format!(
-                r#"
+                r##"
 [[hypothesis]]
 # A short label for the hypothesis; reports and named values use it.
 id = "H1"
@@ -143,10 +207,23 @@ claim = "Stress ratings fall after the change."
 # Paired: every unit is measured twice (before and after, left and right).
 design = "paired"
 
-# The two columns holding the two measurements of the same unit, on one row.
-# Differences are first minus second.
+# Paired data come in one of two layouts; keep the one your file uses.
+#
+# Layout 1, wide (used here): one row per unit, the two measurements in two
+# numeric columns. Differences are first minus second.
 first = "stress_after"
 second = "stress_before"
+#
+# Layout 2, long: one row per measurement, e.g.
+#     commuter,occasion,stress
+#     C01,before,6.8
+#     C01,after,5.9
+# To use it, delete `first` and `second` above and remove the "# " from
+# these four lines. Units are paired by their label in `pair_by`.
+# outcome = "stress"              # the numeric column
+# pair_by = "commuter"            # the column naming the unit measured twice
+# condition = "occasion"          # the column saying which measurement a row is
+# levels = ["after", "before"]    # the two conditions, first and second: differences are first minus second
 
 # The direction you expect for first minus second: "greater", "less" or
 # "two-sided". Decide this now, not later.
@@ -154,15 +231,17 @@ alternative = "less"
 
 # paired-t compares the mean difference; wilcoxon-signed-rank uses ranks;
 # checked lets a preregistered normality check choose.
-method = "{method}"
-"#,
-                method = method.as_str()
+method = "{m}"
+{eq}"##,
+                eq = equivalence("[-0.5, 0.5]", "rating points")
             ),
         ),
         Design::OneSample => (
             "data/espresso.csv",
+            "Shot weight",
+            "g",
             format!(
-                r#"
+                r##"
 [[hypothesis]]
 # A short label for the hypothesis; reports and named values use it.
 id = "H1"
@@ -177,32 +256,75 @@ design = "one-sample"
 outcome = "grams"
 reference = 36
 
-# The direction you expect for outcome minus reference.
+# The direction you expect for outcome minus reference: "greater", "less"
+# or "two-sided".
 alternative = "two-sided"
 
 # one-sample-t compares the mean; wilcoxon-signed-rank uses ranks; checked
 # lets a preregistered normality check choose.
-method = "{method}"
-"#,
-                method = method.as_str()
+method = "{m}"
+{eq}"##,
+                eq = equivalence("[-0.5, 0.5]", "g")
             ),
         ),
+    };
+    let planning = match design {
+        Design::Independent => {
+            r##"
+# Optional: how many units you need, and why (part of the sealed plan; the
+# report compares it with the n you analysed). Give `effect`, or
+# `difference` with `sd`.
+# [hypothesis.planning]
+# effect = 0.5          # smallest difference that matters, in SD units (Cohen's d)
+# difference = 40       # ... or that difference in the outcome's units,
+# sd = 60               #     with the SD you expect
+# power = 0.9           # chance of detecting it if it is real
+# ratio = 1             # size of the second group over the first
+# sd_ratio = 1.5        # welch-t only: the SD of the second group over the first
+"##
+        }
+        _ => {
+            r##"
+# Optional: how many units you need, and why (part of the sealed plan; the
+# report compares it with the n you analysed). Give `effect`, or
+# `difference` with `sd`.
+# [hypothesis.planning]
+# effect = 0.5          # smallest difference that matters, in SD units (Cohen's d; d_z for paired)
+# difference = 0.5      # ... or that difference in the outcome's units,
+# sd = 1                #     with the SD you expect (of the differences, for paired)
+# power = 0.9           # chance of detecting it if it is real
+"##
+        }
     };
     let mut s = HEAD
         .replace("NAME", name)
         .replace("TITLE", &name.replace(['-', '_'], " "));
     s.push_str(&format!("path = \"{data}\"\n"));
+    s.push_str(DATA_OPTIONS);
     s.push_str(
-        r#"
+        r##"
 # Exclusions you decide now, before seeing the data. Each removes rows for a
 # reason you state; the report counts what each rule removed. For example:
 # [[exclude]]
 # reason = "Failed the attention check"
 # column = "attention"
-# values = ["fail"]
-"#,
+# values = ["fail"]            # rows whose cell is one of these texts
+# Or by range, for a numeric column:
+# below = 1000                 # remove values below this (and/or `above = …`)
+# Or outliers by a rule fixed in advance:
+# outlier = "median-distance"  # or "tukey-fences"
+# limit = 3                    # in scaled MADs (median-distance) or IQRs (tukey-fences)
+# by = "group"                 # optional: judge within each group of this column
+"##,
     );
     s.push_str(&hypothesis);
+    s.push_str(
+        &COMMON_OPTIONS
+            .replace("LABEL", label)
+            .replace("UNITS", units),
+    );
+    s.push_str(planning);
+    s.push_str(DEVIATIONS);
     s
 }
 
@@ -224,6 +346,118 @@ mod tests {
             );
             let f = crate::plan::validate::parse(Path::new("trial.toml"), &t).unwrap();
             assert_eq!(f.plan.hypotheses[0].design, design);
+        }
+    }
+
+    /// Removes the "# " from the lines that start with one of `keys`.
+    fn uncomment(text: &str, keys: &[&str]) -> String {
+        text.lines()
+            .map(|l| match l.strip_prefix("# ") {
+                Some(rest) if keys.iter().any(|k| rest.starts_with(&format!("{k} ="))) => rest,
+                _ => l,
+            })
+            .collect::<Vec<_>>()
+            .join("\n")
+    }
+
+    #[test]
+    fn the_paired_starter_shows_both_layouts_and_each_parses() {
+        let wide = text("trial", Design::Paired, Method::PairedT);
+        let f = crate::plan::validate::parse(Path::new("trial.toml"), &wide).unwrap();
+        assert!(matches!(
+            f.plan.hypotheses[0].comparison,
+            crate::plan::Comparison::PairedColumns { .. }
+        ));
+        // The long layout, as the comments say: drop first/second, uncomment four lines.
+        let long: String = uncomment(&wide, &["outcome", "pair_by", "condition", "levels"])
+            .lines()
+            .filter(|l| !l.starts_with("first =") && !l.starts_with("second ="))
+            .collect::<Vec<_>>()
+            .join("\n");
+        let f = crate::plan::validate::parse(Path::new("trial.toml"), &long).unwrap();
+        match &f.plan.hypotheses[0].comparison {
+            crate::plan::Comparison::PairedRows {
+                pair_by,
+                condition,
+                levels,
+            } => {
+                assert_eq!(pair_by, "commuter");
+                assert_eq!(condition, "occasion");
+                assert_eq!(levels, &["after".to_string(), "before".to_string()]);
+            }
+            other => panic!("expected the long layout, got {other:?}"),
+        }
+    }
+
+    #[test]
+    fn every_data_option_is_shown_and_parses_when_uncommented() {
+        for design in [Design::Independent, Design::Paired, Design::OneSample] {
+            let t = text("trial", design, Method::Checked);
+            for key in [
+                "format",
+                "delimiter",
+                "decimal",
+                "missing",
+                "sheet",
+                "label",
+                "units",
+                "robustness",
+                "check_alpha",
+                "seed",
+            ] {
+                assert!(
+                    t.lines()
+                        .any(|l| l.trim_start_matches("# ").starts_with(&format!("{key} ="))),
+                    "{design:?} starter lacks `{key}`"
+                );
+            }
+            // Each [data] option and top-level option, uncommented on its own,
+            // is a valid plan (sheet needs an .xlsx file, so format follows it).
+            for key in [
+                "delimiter",
+                "decimal",
+                "missing",
+                "robustness",
+                "check_alpha",
+                "seed",
+            ] {
+                let one = uncomment(&t, &[key]);
+                let f = crate::plan::validate::parse(Path::new("trial.toml"), &one);
+                // "," as delimiter and decimal together is refused by design;
+                // the decimal example is "." so this must pass.
+                assert!(
+                    f.is_ok(),
+                    "{design:?} with `{key}` uncommented: {:?}",
+                    f.err()
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn every_starter_check_passes_with_every_method_that_fits() {
+        for design in [Design::Independent, Design::Paired, Design::OneSample] {
+            for method in crate::plan::Method::ALL {
+                if method.misfit(design).is_some() {
+                    continue;
+                }
+                let t = text("trial", design, method);
+                let f = crate::plan::validate::parse(Path::new("trial.toml"), &t);
+                assert!(f.is_ok(), "{design:?}/{method:?}: {:?}", f.err());
+                // The equivalence example is offered only for t methods, and
+                // uncommented (with a two-sided alternative) it parses.
+                if t.contains("# equivalence =") {
+                    let eq = uncomment(&t, &["equivalence"])
+                        .replace("alternative = \"greater\"", "alternative = \"two-sided\"")
+                        .replace("alternative = \"less\"", "alternative = \"two-sided\"");
+                    let f = crate::plan::validate::parse(Path::new("trial.toml"), &eq);
+                    assert!(
+                        f.is_ok(),
+                        "{design:?}/{method:?} equivalence: {:?}",
+                        f.err()
+                    );
+                }
+            }
         }
     }
 

@@ -85,6 +85,19 @@ fn locate(target: &Path) -> Result<(PathBuf, PathBuf)> {
             .parent()
             .map(Path::to_path_buf)
             .unwrap_or_else(|| PathBuf::from("."));
+        // A report (report.html, report.md, …) is checked through the
+        // results.json written beside it.
+        if target.file_name() != Some("results.json".as_ref()) {
+            let r = dir.join("results.json");
+            if !r.is_file() {
+                return Err(Failure::input(format!(
+                    "no results.json beside {}; verify checks a report through it",
+                    target.display()
+                ))
+                .help("keep the report's folder whole as `attest run` wrote it (report.html, results.json, figures/)"));
+            }
+            return Ok((dir, r));
+        }
         Ok((dir, target.to_path_buf()))
     }
 }
@@ -150,6 +163,9 @@ pub(crate) fn verify(
     if !unlocked {
         items.extend(lock_items(&analysis, &recorded, &hash)?);
     }
+    let lock_edited = items
+        .iter()
+        .any(|i| i.what == "lock content" && i.changed.is_some());
 
     let data_path = analysis
         .parent()
@@ -164,7 +180,7 @@ pub(crate) fn verify(
                 Item::changed(
                     "data",
                     format!(
-                        "data changed: {} sha256 {} → {}",
+                        "{} sha256 {} → {}",
                         file.plan.data.path,
                         short(&recorded.data.sha256),
                         short(&h)
@@ -183,7 +199,7 @@ pub(crate) fn verify(
         Item::changed(
             "tool version",
             format!(
-                "tool version differs: report {} , this attest {version}",
+                "tool version differs: report {}, this attest {version}",
                 recorded.version
             ),
             false,
@@ -195,7 +211,12 @@ pub(crate) fn verify(
     // outputs as of the recorded witness and report the current one.
     if let (Some(now), Some(then)) = (fresh.lock_record.as_mut(), recorded.lock_record.as_ref()) {
         let current = std::mem::replace(&mut now.witness, then.witness.clone());
-        items.push(Item::note("lock in git", describe_witness(&current)));
+        let note = if lock_edited {
+            "not consulted: the lock was edited by hand".to_string()
+        } else {
+            describe_witness(&current)
+        };
+        items.push(Item::note("lock in git", note));
     }
     let outputs = pipeline::render_outputs(&fresh, templates)?;
     for (name, bytes) in outputs {
@@ -248,7 +269,13 @@ fn lock_items(analysis: &Path, recorded: &Results, plan_hash_now: &str) -> Resul
             true,
         ));
     }
-    items.push(if lock.plan_sha256 == plan_hash_now {
+    items.push(if !lock.intact() {
+        Item::changed(
+            "plan against lock",
+            "not compared: a lock edited by hand proves nothing about the plan",
+            true,
+        )
+    } else if lock.plan_sha256 == plan_hash_now {
         Item::same("plan against lock")
     } else {
         Item::changed(

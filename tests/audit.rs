@@ -69,12 +69,14 @@ fn edited_data_are_named_with_both_hashes() {
         .unwrap();
     assert!(
         line.contains(&format!(
-            "data changed: oven.csv sha256 {} → {}",
+            "changed: oven.csv sha256 {} → {}",
             &before[..12],
             &after[..12]
         )),
         "{line}"
     );
+    // Said once: the line is about the data already.
+    assert!(!line.contains("data changed"), "{line}");
     assert!(
         text.lines().any(|l| l.trim_start().starts_with("report.md")
             && l.contains("changed: differs from a fresh run")),
@@ -154,6 +156,22 @@ fn a_hand_edited_lock_is_detected() {
     assert_eq!(code, 2, "{text}");
     assert!(text.contains("lock replaced"), "{text}");
     assert!(text.contains("the lock was edited by hand"), "{text}");
+    // The other lock lines agree: an edited lock vouches for nothing, so the
+    // plan is not reported "same" as it, nor is git consulted about it.
+    let line = |what: &str| {
+        text.lines()
+            .find(|l| l.trim_start().starts_with(what))
+            .unwrap_or_else(|| panic!("no `{what}` line in {text}"))
+            .to_string()
+    };
+    assert!(
+        line("plan against lock").contains("changed: not compared"),
+        "{text}"
+    );
+    assert!(
+        line("lock in git").contains("not consulted: the lock was edited by hand"),
+        "{text}"
+    );
     // A run says so too, and does not call it "as locked".
     let out = c.attest(&["run", "oven.toml", "--force"]).success();
     let err = String::from_utf8_lossy(&out.get_output().stderr).into_owned();

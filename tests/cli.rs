@@ -154,7 +154,7 @@ fn bad_plans_point_at_file_line_and_column() {
         (
             "alternative =",
             "alternativ =",
-            "error: a.toml:15:1: unknown field `alternativ`",
+            "error: a.toml:15:1: unknown key `alternativ`",
         ),
     ];
     for (from, to, expected) in cases {

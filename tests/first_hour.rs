@@ -85,3 +85,69 @@ fn no_colour_without_a_terminal() {
         "escape codes in piped output: {text:?}"
     );
 }
+
+#[test]
+fn the_paired_starter_runs_in_its_long_layout_too() {
+    // Following the starter's own comment: delete `first`/`second`, remove
+    // the "# " from the four long-layout lines, point it at long data.
+    let c = with_demos();
+    c.attest(&["new", "long-pairs", "--design", "paired"])
+        .success();
+    let wide = c.read("analyses/long-pairs.toml");
+    let keys = ["outcome =", "pair_by =", "condition =", "levels ="];
+    let long: Vec<String> = wide
+        .lines()
+        .filter(|l| !l.starts_with("first =") && !l.starts_with("second ="))
+        .map(|l| match l.strip_prefix("# ") {
+            Some(rest) if keys.iter().any(|k| rest.starts_with(k)) => rest.to_string(),
+            _ => l.replace("data/commute.csv", "data/commute-long.csv"),
+        })
+        .collect();
+    // The demo's wide file, rewritten one row per measurement.
+    let csv = c.read("analyses/data/commute.csv");
+    let mut rows = vec!["commuter,occasion,stress".to_string()];
+    for line in csv.lines().skip(1) {
+        let f: Vec<&str> = line.split(',').collect();
+        rows.push(format!("{},before,{}", f[0], f[1]));
+        rows.push(format!("{},after,{}", f[0], f[2]));
+    }
+    c.write("analyses/data/commute-long.csv", &(rows.join("\n") + "\n"));
+    c.write("analyses/long-pairs.toml", &(long.join("\n") + "\n"));
+    c.attest(&["check", "analyses/long-pairs.toml"]).success();
+    c.attest(&["run", "--unlocked", "analyses/long-pairs.toml"])
+        .success();
+    let r: serde_json::Value =
+        serde_json::from_str(&c.read("out/long-pairs/results.json")).unwrap();
+    // Both layouts analyse the same 40 commuters (analyses/data/commute.csv).
+    assert_eq!(r["hypotheses"][0]["groups"][0]["n"], 40);
+}
+
+/// Runs `attest ARGS` with its standard error going into a pipe whose
+/// reader has already gone, and returns the exit code.
+fn code_with_stderr_closed(args: &str) -> i32 {
+    let c = Case::new();
+    let bin = assert_cmd::cargo::cargo_bin("attest");
+    // `true` ends at once; a moment later attest writes to the pipe it left.
+    let script = format!("{{ sleep 0.3; \"$0\" {args}; echo $? > code; }} 2>&1 >/dev/null | true");
+    let status = std::process::Command::new("sh")
+        .arg("-c")
+        .arg(script)
+        .arg(&bin)
+        .current_dir(c.path())
+        .status()
+        .unwrap();
+    assert!(status.success());
+    c.read("code").trim().parse().unwrap()
+}
+
+#[test]
+fn a_closed_stderr_ends_with_the_exit_code_not_a_panic() {
+    // 101 would be a panic; 1 is the documented code for bad input.
+    assert_eq!(code_with_stderr_closed("check missing.toml"), 1);
+    assert_eq!(
+        code_with_stderr_closed(
+            "power --design independent --effect 0.4 --power 0.9 --alternative one-sided"
+        ),
+        1
+    );
+}

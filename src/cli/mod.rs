@@ -17,6 +17,10 @@ pub fn main() -> i32 {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {
+            if let Some(f) = one_sided_without_direction(&e) {
+                tell(&f.to_string());
+                return f.kind.exit_code();
+            }
             // clap prints help/version to stdout (exit 0) and usage errors to
             // stderr; usage errors are bad input (exit 1).
             let code = if e.use_stderr() { 1 } else { 0 };
@@ -27,10 +31,50 @@ pub fn main() -> i32 {
     match dispatch(cli) {
         Ok(code) => code,
         Err(f) => {
-            eprintln!("{f}");
+            tell(&f.to_string());
             f.kind.exit_code()
         }
     }
+}
+
+/// `--alternative one-sided` (or one-tailed): clap would suggest the
+/// nearest spelling, "two-sided", which means the opposite; say instead
+/// how a one-sided test is named here.
+fn one_sided_without_direction(e: &clap::Error) -> Option<Failure> {
+    use clap::error::{ContextKind, ContextValue, ErrorKind};
+    if e.kind() != ErrorKind::InvalidValue {
+        return None;
+    }
+    let arg = match e.get(ContextKind::InvalidArg)? {
+        ContextValue::String(s) => s.clone(),
+        _ => return None,
+    };
+    let value = match e.get(ContextKind::InvalidValue)? {
+        ContextValue::String(s) => s.clone(),
+        _ => return None,
+    };
+    if !arg.starts_with("--alternative") || !crate::plan::validate::is_one_sided_name(&value) {
+        return None;
+    }
+    Some(
+        Failure::input(format!(
+            "`--alternative {}` does not say which direction",
+            crate::error::shown(&value)
+        ))
+        .help(
+            "a one-sided test is named by its direction: `--alternative greater` (the \
+             difference is above zero) or `--alternative less` (below zero); two-sided is the \
+             default",
+        ),
+    )
+}
+
+/// Writes one message and a newline to standard error. A closed standard
+/// error (`attest run x.toml 2>&-`, a reader that went away) is not worth a
+/// panic: the exit code still tells what happened.
+fn tell(s: &str) {
+    let mut err = std::io::stderr().lock();
+    let _ = writeln!(err, "{s}");
 }
 
 /// Writes one block of text and a newline to standard output.
@@ -119,7 +163,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
             if files.len() == 1 && !expect_same {
                 let o = pipeline::run(&files[0], &opts)?;
                 for line in terminal::lock_warnings(&o.results) {
-                    eprintln!("{line}");
+                    tell(&line);
                 }
                 if json {
                     say(&terminal::run_json(&o))?;

@@ -280,10 +280,16 @@ fn intern(
 
 /// The user's message for a cell problem at a position.
 pub(crate) fn failure(p: &Problem, column: &str, text: &[u8], decimal: char) -> Failure {
-    let shown = String::from_utf8_lossy(trim(text));
+    // Quoted capped and escaped: a cell can be megabytes long when a quote
+    // is left open (it then runs to the end of the file).
+    let shown = crate::error::shown(&String::from_utf8_lossy(trim(text)));
+    let column = crate::error::shown(column);
     match p {
         Problem::NotNumber => {
             let f = Failure::input(format!("column \"{column}\": \"{shown}\" is not a number"));
+            if text.contains(&b'\n') {
+                return f.help("the cell runs over a line break: a quote (\") opened in it is never closed, so every line after it was read as part of this cell; close the quote or remove it");
+            }
             let as_comma = decimal == '.' && parse_number(trim(text), b',').is_ok();
             if as_comma {
                 f.help("the number is written with a decimal comma; add `decimal = \",\"` to [data]")

@@ -14,7 +14,7 @@
 pub(crate) mod cell;
 pub(crate) mod exclude;
 pub mod read;
-pub mod select;
+pub(crate) mod select;
 pub(crate) mod xlsx;
 
 use crate::error::{Failure, Result};

@@ -4,7 +4,7 @@
 
 use super::raw::{Num, RawData, RawDeviation, RawExclude, RawFile, RawHypothesis, RawPlanning};
 use super::*;
-use crate::error::{line_col, Failure, Result};
+use crate::error::{capped_message, line_col, shown, Failure, Result};
 use std::collections::HashSet;
 use std::path::Path;
 use toml::Spanned;
@@ -18,6 +18,7 @@ pub const MAX_HYPOTHESES: usize = 200;
 
 /// Reads, parses and validates an analysis file.
 pub(crate) fn load(path: &Path) -> Result<AnalysisFile> {
+    refuse_other_kinds(path)?;
     let bytes = std::fs::read(path).map_err(|e| {
         Failure::io("read the analysis file", path, &e)
             .help("check the path; analysis files usually live in analyses/")
@@ -34,6 +35,50 @@ pub(crate) fn load(path: &Path) -> Result<AnalysisFile> {
     parse(path, &text)
 }
 
+/// Files attest writes or reads besides analysis files, by extension, and
+/// what each one is; naming one where an analysis file belongs is refused
+/// before it is parsed, since its TOML syntax error would explain the
+/// wrong thing.
+const OTHER_KINDS: &[(&str, &str)] = &[
+    ("md", "a report or document"),
+    ("html", "a report or document"),
+    ("htm", "a report or document"),
+    ("json", "a results or values file"),
+    ("tex", "a values file"),
+    ("svg", "a figure"),
+    ("lock", "a lock"),
+    ("csv", "a data file"),
+    ("tsv", "a data file"),
+    ("txt", "a data file"),
+    ("xlsx", "a data file"),
+];
+
+fn refuse_other_kinds(path: &Path) -> Result<()> {
+    let ext = path
+        .extension()
+        .map(|e| e.to_string_lossy().to_lowercase())
+        .unwrap_or_default();
+    let Some((_, kind)) = OTHER_KINDS.iter().find(|(e, _)| *e == ext) else {
+        return Ok(());
+    };
+    let help = match ext.as_str() {
+        "md" | "html" | "htm" | "json" | "tex" | "svg" => format!(
+            "name the analysis file (`.toml`, usually in analyses/) to run it; to check \
+             that a report reproduces, use `attest verify {}`",
+            path.display()
+        ),
+        "lock" => "name the analysis file the lock belongs to: the `.toml` file of the same name"
+            .to_string(),
+        _ => "name the analysis file (`.toml`) whose `[data]` path points at this data file"
+            .to_string(),
+    };
+    Err(Failure::input(format!(
+        "this is {kind}, not an analysis file: analysis files are TOML plans ending in `.toml`"
+    ))
+    .in_file(path)
+    .help(help))
+}
+
 /// Parses and validates analysis-file text; `path` is used in messages.
 pub fn parse(path: &Path, text: &str) -> Result<AnalysisFile> {
     let text_no_bom = text.strip_prefix('\u{feff}').unwrap_or(text);
@@ -47,20 +92,26 @@ pub fn parse(path: &Path, text: &str) -> Result<AnalysisFile> {
 }
 
 /// Turns a TOML or serde error into a positioned failure, adding a
-/// "did you mean" for unknown keys.
+/// "did you mean" for unknown keys and tables and naming the key whose
+/// value has the wrong type.
 fn toml_failure(path: &Path, text: &str, e: &toml::de::Error) -> Failure {
     let msg = e.message().trim().to_string();
-    let mut f = Failure::input(first_sentence(&msg));
-    if let Some(span) = e.span() {
-        let (l, c) = line_col(text, span.start);
+    let start = e.span().map(|s| s.start);
+    let mut f = Failure::input(capped_message(&first_sentence(&msg)));
+    if let Some(start) = start {
+        let (l, c) = line_col(text, start);
         f = f.at(path, l, Some(c));
     } else {
         f = f.in_file(path);
     }
-    if let Some(help) = unknown_key_help(&msg) {
+    if let Some((what, help)) = unknown_key(&msg, start.map(|s| line_before(text, s))) {
+        f.what = what;
         f = f.help(help);
     } else if msg.contains("missing field") {
         f = f.help("add the key; see docs/guide/reference/analysis-file.md");
+    } else if let Some((what, help)) = start.and_then(|s| wrong_type(&msg, text, s)) {
+        f.what = what;
+        f = f.help(help);
     } else if let Some(help) = type_help(&msg) {
         f = f.help(help);
     } else {
@@ -69,6 +120,69 @@ fn toml_failure(path: &Path, text: &str, e: &toml::de::Error) -> Failure {
         );
     }
     f
+}
+
+/// The text of the line holding `offset`, up to `offset`.
+fn line_before(text: &str, offset: usize) -> &str {
+    let mut offset = offset.min(text.len());
+    while !text.is_char_boundary(offset) {
+        offset -= 1;
+    }
+    let before = &text[..offset];
+    &before[before.rfind('\n').map_or(0, |i| i + 1)..]
+}
+
+/// For serde's "invalid type: X, expected Y" at a value written as
+/// `key = value`: names the key and shows the line as it should read.
+fn wrong_type(msg: &str, text: &str, start: usize) -> Option<(String, String)> {
+    let rest = msg.strip_prefix("invalid type: ")?;
+    let (found, expected) = rest.split_once(", expected ")?;
+    let expected = expected.lines().next()?.trim();
+    let line = line_before(text, start);
+    let key = line.rsplit_once('=')?.0.trim();
+    let key = key.rsplit('.').next()?.trim().trim_matches('"');
+    if key.is_empty() || key.starts_with('[') {
+        return None;
+    }
+    let kind = match expected {
+        "a number" | "f64" | "i64" => "a number",
+        "a sequence" => "a list",
+        "a string" | "a borrowed string" => "text",
+        "a boolean" => "`true` or `false`",
+        other => other,
+    };
+    let found = match found.strip_prefix("string ") {
+        Some(q) => format!("the text {}", shown(q)),
+        None => found.to_string(),
+    };
+    let what = format!("`{key}` takes {kind}, but here it is {found}");
+    let help = match (kind, found.strip_prefix("the text \"")) {
+        ("a number", Some(q)) => {
+            let inner = q.strip_suffix('"').unwrap_or(q);
+            if inner.trim().parse::<f64>().is_ok() {
+                format!(
+                    "write the number without quotes: `{key} = {}`",
+                    inner.trim()
+                )
+            } else {
+                format!("write a number without quotes, e.g. `{key} = 0.05`")
+            }
+        }
+        ("a number", None) => format!("write a number without quotes, e.g. `{key} = 0.05`"),
+        ("a list", Some(q)) => format!(
+            "write a list in square brackets: `{key} = [\"{}\", …]`",
+            q.strip_suffix('"').unwrap_or(q)
+        ),
+        ("a list", None) => {
+            format!("write a list in square brackets, e.g. `{key} = [\"first\", \"second\"]`")
+        }
+        ("text", _) => format!("write the value in double quotes, e.g. `{key} = \"…\"`"),
+        ("`true` or `false`", _) => {
+            format!("write `{key} = true` or `{key} = false`, without quotes")
+        }
+        (other, _) => format!("write {other} for `{key}`"),
+    };
+    Some((what, help))
 }
 
 /// For serde's "invalid type: …, expected X" message (a value of the wrong
@@ -98,20 +212,69 @@ fn first_sentence(msg: &str) -> String {
     msg.lines().next().unwrap_or(msg).to_string()
 }
 
-/// For serde's "unknown field `x`, expected one of `a`, `b`" message,
-/// suggests the closest known key.
-fn unknown_key_help(msg: &str) -> Option<String> {
+/// For serde's "unknown field `x`, expected one of `a`, `b`" message: what
+/// to say (a key, or a table when the line starts with `[`) and the help,
+/// with the closest known name. `line` is the line up to the name.
+fn unknown_key(msg: &str, line: Option<&str>) -> Option<(String, String)> {
     let rest = msg.strip_prefix("unknown field `")?;
     let (key, rest) = rest.split_once('`')?;
     let known: Vec<&str> = rest.split('`').skip(1).step_by(2).collect();
-    let best = known
+    let head = line.unwrap_or("").trim_start();
+    let (open, close) = if head.starts_with("[[") {
+        ("[[", "]]")
+    } else if head.starts_with('[') {
+        ("[", "]")
+    } else {
+        ("", "")
+    };
+    let dotted = head.trim_start_matches('[').trim();
+    let name = |k: &str| format!("{open}{dotted}{k}{close}");
+    let what = if open.is_empty() {
+        format!("unknown key `{}`", shown(key))
+    } else {
+        format!("unknown table `{}`", name(&shown(key)))
+    };
+    let help = match closest(key, &known) {
+        Some(k) => format!(
+            "did you mean `{}`? Known here: {}",
+            if open.is_empty() {
+                k.to_string()
+            } else {
+                name(k)
+            },
+            known.join(", ")
+        ),
+        None => format!("known here: {}", known.join(", ")),
+    };
+    Some((what, help))
+}
+
+/// The known name a mistyped one most likely meant: within a small edit
+/// distance, or sharing a long start (`exclusion` for `exclude`).
+pub(crate) fn closest<'a>(given: &str, known: &[&'a str]) -> Option<&'a str> {
+    let given_l = given.to_lowercase();
+    let by_edit = known
         .iter()
-        .map(|k| (edit_distance(key, k), *k))
+        .map(|k| (edit_distance(&given_l, k), *k))
         .min()
-        .filter(|(d, k)| *d <= 2.max(k.len() / 3));
-    Some(match best {
-        Some((_, k)) => format!("did you mean `{k}`? Known keys here: {}", known.join(", ")),
-        None => format!("known keys here: {}", known.join(", ")),
+        .filter(|(d, k)| *d <= 2.max(k.len() / 3))
+        .map(|(_, k)| k);
+    by_edit.or_else(|| {
+        known
+            .iter()
+            .map(|k| {
+                let common = given_l
+                    .chars()
+                    .zip(k.chars())
+                    .take_while(|(a, b)| a == b)
+                    .count();
+                (common, *k)
+            })
+            .filter(|(common, k)| {
+                *common >= 4 && *common * 2 >= k.chars().count().min(given_l.chars().count())
+            })
+            .max_by_key(|(common, _)| *common)
+            .map(|(_, k)| k)
     })
 }
 
@@ -129,6 +292,18 @@ pub(crate) fn edit_distance(a: &str, b: &str) -> usize {
     }
     prev[b.len()]
 }
+
+/// Whether a value names a one-sided test without saying its direction
+/// ("one-sided", "one-tailed", "one sided", …).
+pub(crate) fn is_one_sided_name(given: &str) -> bool {
+    let g = given.to_lowercase();
+    g.starts_with("one") && (g.contains("side") || g.contains("tail"))
+}
+
+/// What to say when a one-sided test is asked for without its direction.
+pub(crate) const ONE_SIDED_HELP: &str = "a one-sided test is named by its direction: \
+     \"greater\" (first − second > 0, or outcome − reference > 0) or \"less\" \
+     (the difference < 0); \"two-sided\" is the default";
 
 struct Checker<'a> {
     path: &'a Path,
@@ -296,12 +471,21 @@ impl Checker<'_> {
             .map(|n| (edit_distance(given, n), *n))
             .min()
             .filter(|(d, _)| *d <= 3);
-        let help = match near {
-            Some((_, n)) => format!("did you mean \"{n}\"? Choose one of: {}", names.join(", ")),
-            None => format!("choose one of: {}", names.join(", ")),
+        let help = if key == "alternative" && is_one_sided_name(given) {
+            ONE_SIDED_HELP.to_string()
+        } else {
+            match near {
+                Some((_, n)) => {
+                    format!("did you mean \"{n}\"? Choose one of: {}", names.join(", "))
+                }
+                None => format!("choose one of: {}", names.join(", ")),
+            }
         };
         Err(self
-            .at(s, format!("`{key}` = \"{given}\" is not a known value"))
+            .at(
+                s,
+                format!("`{key}` = \"{}\" is not a known value", shown(given)),
+            )
             .help(help))
     }
 
@@ -349,7 +533,7 @@ impl Checker<'_> {
             "xlsx" => (DataFormat::Xlsx, ','),
             other => {
                 let f = Failure::input(if d.format.is_some() {
-                    format!("`format` = \"{other}\" is not a known data format")
+                    format!("`format` = \"{}\" is not a known data format", shown(other))
                 } else {
                     format!("cannot tell the data format from the file name `{path}`")
                 });
@@ -374,7 +558,10 @@ impl Checker<'_> {
                         return Err(self
                             .at(
                                 s,
-                                format!("`delimiter` must be one ASCII character, found \"{v}\""),
+                                format!(
+                                    "`delimiter` must be one ASCII character, found \"{}\"",
+                                    shown(v)
+                                ),
                             )
                             .help(
                                 "write for example `delimiter = \";\"` or `delimiter = \"\\t\"`",
@@ -392,7 +579,10 @@ impl Checker<'_> {
                     return Err(self
                         .at(
                             s,
-                            format!("`decimal` must be \".\" or \",\", found \"{other}\""),
+                            format!(
+                                "`decimal` must be \".\" or \",\", found \"{}\"",
+                                shown(other)
+                            ),
                         )
                         .help("use `decimal = \",\"` for numbers written like 12,5"))
                 }
@@ -469,7 +659,7 @@ impl Checker<'_> {
                 "tukey-fences" => ExcludeKind::TukeyFences { limit, by },
                 other => {
                     return Err(self
-                        .at(o, format!("`outlier` = \"{other}\" is not a known rule"))
+                        .at(o, format!("`outlier` = \"{}\" is not a known rule", shown(other)))
                         .help("choose \"median-distance\" (in median absolute deviations) or \"tukey-fences\" (in IQRs)"))
                 }
             }
@@ -549,6 +739,7 @@ impl Checker<'_> {
                     .help("add e.g. `method = \"welch-t\"`, or `method = \"checked\"` for the assumption-gated choice"))
             }
         };
+        self.unused_keys(design, r)?;
         if let Some(e) = method.misfit(design) {
             let at = self.at(r.method.as_ref().expect("method present"), e.what);
             return Err(Failure { help: e.help, ..at });
@@ -699,14 +890,10 @@ impl Checker<'_> {
         })
     }
 
-    fn comparison(
-        &self,
-        id: &str,
-        design: Design,
-        r: &RawHypothesis,
-        h: &Spanned<RawHypothesis>,
-    ) -> Result<Comparison> {
-        // Keys that this design does not use are errors, named one by one.
+    /// Keys that the design does not use are errors, named one by one,
+    /// before anything else about the hypothesis is judged: a stray key is
+    /// the first thing to fix. Returns the keys the design uses.
+    fn unused_keys(&self, design: Design, r: &RawHypothesis) -> Result<&'static [&'static str]> {
         let used: &[&str] = match design {
             Design::Independent => &["group", "levels"],
             Design::Paired if r.first.is_some() || r.second.is_some() => &["first", "second"],
@@ -726,19 +913,46 @@ impl Checker<'_> {
             if let Some(span) = span {
                 if !used.contains(key) {
                     let (l, c) = line_col(self.text, span.start);
-                    return Err(Failure::input(format!(
-                        "`{key}` is not used by the {} design",
-                        design.as_str()
-                    ))
-                    .at(self.path, l, Some(c))
-                    .help(format!(
-                        "remove `{key}`; the {} design uses: {}",
-                        design.as_str(),
-                        used.join(", ")
-                    )));
+                    let wide = design == Design::Paired
+                        && used.contains(&"first")
+                        && ["levels", "pair_by", "condition"].contains(key);
+                    let (what, help) = if wide {
+                        (
+                            format!(
+                                "`{key}` is not used by the paired design with `first`/`second` columns"
+                            ),
+                            format!(
+                                "remove `{key}` (the wide layout compares the columns `first` and \
+                                 `second`, one unit per row), or use the long layout instead: \
+                                 `outcome`, `pair_by`, `condition` and `levels`, without \
+                                 `first`/`second`"
+                            ),
+                        )
+                    } else {
+                        (
+                            format!("`{key}` is not used by the {} design", design.as_str()),
+                            format!(
+                                "remove `{key}`; the {} design uses: {}",
+                                design.as_str(),
+                                used.join(", ")
+                            ),
+                        )
+                    };
+                    return Err(Failure::input(what).at(self.path, l, Some(c)).help(help));
                 }
             }
         }
+        Ok(used)
+    }
+
+    fn comparison(
+        &self,
+        id: &str,
+        design: Design,
+        r: &RawHypothesis,
+        h: &Spanned<RawHypothesis>,
+    ) -> Result<Comparison> {
+        let used = self.unused_keys(design, r)?;
         let need = |v: &Option<Spanned<String>>, key: &str| -> Result<String> {
             match v {
                 Some(s) if !s.get_ref().trim().is_empty() => Ok(s.get_ref().clone()),
@@ -852,6 +1066,82 @@ method = "welch-t"
             .replace("welch-t", "paired-t");
         let e = parse(Path::new("a.toml"), &text).unwrap_err();
         assert_eq!(e.what, "`group` is not used by the paired design");
+    }
+
+    #[test]
+    fn table_names_get_a_did_you_mean_too() {
+        let known = ["data", "exclude", "hypothesis", "deviation"];
+        assert_eq!(closest("exclusion", &known), Some("exclude"));
+        assert_eq!(closest("hypotheses", &known), Some("hypothesis"));
+        assert_eq!(closest("Deviations", &known), Some("deviation"));
+        assert_eq!(closest("notes", &known), None);
+        let text = format!("{GOOD}[[exclusion]]\nreason = \"x\"\n");
+        let e = parse(Path::new("a.toml"), &text).unwrap_err();
+        assert_eq!(e.what, "unknown table `[[exclusion]]`");
+        assert!(e.help.unwrap().starts_with("did you mean `[[exclude]]`?"));
+    }
+
+    #[test]
+    fn a_value_of_the_wrong_type_names_its_key_and_the_fix() {
+        let text = GOOD.replace(
+            "title = \"Loaf volume\"",
+            "title = \"Loaf volume\"\nalpha = \"0.05\"",
+        );
+        let e = parse(Path::new("a.toml"), &text).unwrap_err();
+        assert_eq!(
+            e.what,
+            "`alpha` takes a number, but here it is the text \"0.05\""
+        );
+        assert_eq!(
+            e.help.unwrap(),
+            "write the number without quotes: `alpha = 0.05`"
+        );
+    }
+
+    #[test]
+    fn one_sided_is_answered_with_the_two_directions() {
+        let text = GOOD.replace("\"greater\"", "\"one-sided\"");
+        let e = parse(Path::new("a.toml"), &text).unwrap_err();
+        let help = e.help.unwrap();
+        assert!(
+            help.contains("\"greater\"") && help.contains("\"less\""),
+            "{help}"
+        );
+        assert!(!help.contains("did you mean"), "{help}");
+        assert!(is_one_sided_name("One-tailed"));
+        assert!(!is_one_sided_name("two-sided"));
+    }
+
+    #[test]
+    fn a_key_the_design_does_not_use_comes_before_the_method() {
+        let text = GOOD
+            .replace("design = \"independent\"", "design = \"paired\"")
+            .replace(
+                "outcome = \"volume_ml\"\ngroup = \"proof\"\n",
+                "first = \"a\"\nsecond = \"b\"\n",
+            );
+        let e = parse(Path::new("a.toml"), &text).unwrap_err();
+        assert_eq!(
+            e.what,
+            "`levels` is not used by the paired design with `first`/`second` columns"
+        );
+    }
+
+    #[test]
+    fn other_kinds_of_file_are_refused_before_parsing() {
+        let e = load(Path::new("out/x/report.md")).unwrap_err();
+        assert!(
+            e.what
+                .starts_with("this is a report or document, not an analysis file"),
+            "{}",
+            e.what
+        );
+        let e = load(Path::new("analyses/x.lock")).unwrap_err();
+        assert!(
+            e.what.starts_with("this is a lock, not an analysis file"),
+            "{}",
+            e.what
+        );
     }
 
     #[test]

@@ -133,8 +133,8 @@ fn hypothesis(h: &Hypothesis, _confidence: f64) -> Vec<Value> {
     match h.equivalence {
         Some([low, high]) => {
             let (l, u) = (apa::two(low), apa::two(high));
-            lines.push(md(format!("H0: {delta} ≤ {l} or {delta} ≥ {u}")));
-            lines.push(md(format!("H1: {l} < {delta} < {u}")));
+            lines.push(md(format!("Null: {delta} ≤ {l} or {delta} ≥ {u}")));
+            lines.push(md(format!("Alternative: {l} < {delta} < {u}")));
             lines.push(md(format!("In words: the difference lies inside the bounds {l} to {u}{}, shown by two one-sided tests; {legend}.", units(h))));
         }
         None => {
@@ -159,8 +159,8 @@ fn hypothesis(h: &Hypothesis, _confidence: f64) -> Vec<Value> {
                     ),
                 ),
             };
-            lines.push(md(format!("H0: {delta} {h0} 0")));
-            lines.push(md(format!("H1: {delta} {h1} 0")));
+            lines.push(md(format!("Null: {delta} {h0} 0")));
+            lines.push(md(format!("Alternative: {delta} {h1} 0")));
             lines.push(md(format!("Direction: {words}; {legend}.")));
         }
     }

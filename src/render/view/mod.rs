@@ -229,8 +229,8 @@ fn status(r: &Results) -> String {
     let mut s = match r.lock {
         LockState::AsLocked => format!("**Ran as locked**{locked}."),
         LockState::Deviates => format!(
-            "**Ran with deviations from the lock**{locked}: {} field(s) differ from the locked plan; see *Changes since the lock*.",
-            r.changes.len()
+            "**Ran with deviations from the lock**{locked}: {} differ from the locked plan; see *Changes since the lock*.",
+            if r.changes.len() == 1 { "1 field".to_string() } else { format!("{} fields", r.changes.len()) }
         ),
         LockState::Unlocked => "**Not preregistered**: this analysis ran without a lock, so nothing shows it was planned before the data were seen.".into(),
     };
@@ -570,7 +570,7 @@ fn rows(h: &HypothesisResult) -> Vec<Vec<Value>> {
     if h.design == Design::Paired {
         out.push(vec![
             md(format!(
-                "Dropped: the other measurement of the unit was missing or excluded ({} incomplete pairs)",
+                "Dropped: the other measurement of the unit was missing or excluded (incomplete pairs: {})",
                 f.incomplete_pairs
             )),
             n(f.unpaired[0]),
@@ -603,7 +603,7 @@ fn provenance(r: &Results) -> Vec<Value> {
     ];
     match &r.lock_record {
         Some(l) => {
-            out.push(md(format!("Lock SHA-256: `{}`", l.sha256)));
+            out.push(md(format!("Lock file SHA-256: `{}`", l.sha256)));
             out.push(md(format!(
                 "Locked at: {} with attest {}",
                 escape(&l.locked_at),
