@@ -12,6 +12,7 @@
 use super::view::{FigureRole, FigureView};
 use crate::results::{HypothesisResult, PlotData, Results};
 use plotters::coord::Shift;
+use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 
 /// The SVG renderer: one file per figure the view lists.
@@ -195,18 +196,18 @@ fn groups(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
     Ok(())
 }
 
-/// A dashed line drawn as short segments (plotters has no dash style).
-fn dashed(from: (f64, f64), to: (f64, f64)) -> Vec<PathElement<(f64, f64)>> {
-    let n = 40;
-    (0..n)
-        .step_by(2)
-        .map(|i| {
-            let t0 = i as f64 / n as f64;
-            let t1 = (i + 1) as f64 / n as f64;
-            let at = |t: f64| (from.0 + (to.0 - from.0) * t, from.1 + (to.1 - from.1) * t);
-            PathElement::new(vec![at(t0), at(t1)], GREY.stroke_width(1))
-        })
-        .collect()
+/// A grey dashed reference line (zero, the reference value), drawn by
+/// plotters' own dash style: 5-pixel dashes, 4-pixel gaps.
+fn dashed(
+    from: (f64, f64),
+    to: (f64, f64),
+) -> std::iter::Once<DashedPathElement<std::vec::IntoIter<(f64, f64)>, u32>> {
+    std::iter::once(DashedPathElement::new(
+        vec![from, to],
+        5,
+        4,
+        GREY.stroke_width(1),
+    ))
 }
 
 fn qq(area: &Area, sets: &[PlotData], f: &FigureView) -> DrawResult {
