@@ -131,27 +131,34 @@ fn check_tex(tex: &str) {
 }
 
 #[test]
+fn values_tex_is_well_formed() {
+    let c = Case::new();
+    copy_dir(&root().join("analyses"), &c.path().join("analyses"));
+    c.attest(&["run", "--quiet", "analyses/tutoring.toml"])
+        .success();
+    check_tex(&c.read("out/tutoring/values.tex"));
+}
+
+/// Compiles the chapter example against fresh values with a real LaTeX
+/// engine. It needs one installed, so it is ignored by a plain `cargo test`
+/// (reported as ignored, never passed silently); `.ci/run` installs
+/// pdflatex and runs it with `--ignored`, where a missing engine fails it.
+#[test]
+#[ignore = "needs pdflatex (apt-get install texlive-latex-base); .ci/run runs it with --ignored"]
 fn values_tex_compiles_in_a_latex_document() {
     let c = Case::new();
     copy_dir(&root().join("analyses"), &c.path().join("analyses"));
     c.attest(&["run", "--quiet", "analyses/tutoring.toml"])
         .success();
-    let tex = c.read("out/tutoring/values.tex");
-    check_tex(&tex);
-    let engine = ["pdflatex", "tectonic"].into_iter().find(|e| {
-        std::process::Command::new(e)
-            .arg("--version")
-            .output()
-            .is_ok_and(|o| o.status.success())
-    });
-    let Some(engine) = engine else {
-        assert!(
-            std::env::var_os("ATTEST_REQUIRE_TEX").is_none(),
-            "ATTEST_REQUIRE_TEX is set but no pdflatex or tectonic was found"
-        );
-        eprintln!("skipped the LaTeX compile: no pdflatex or tectonic installed (checked the macro file's structure only)");
-        return;
-    };
+    let engine = ["pdflatex", "tectonic"]
+        .into_iter()
+        .find(|e| {
+            std::process::Command::new(e)
+                .arg("--version")
+                .output()
+                .is_ok_and(|o| o.status.success())
+        })
+        .expect("this test compiles LaTeX: install pdflatex (texlive-latex-base) or tectonic");
     // The chapter example from docs/values/, compiled against the fresh values.
     std::fs::copy(
         root().join("docs/values/chapter.tex"),
