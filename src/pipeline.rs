@@ -101,7 +101,12 @@ pub fn lock(
         dir.write("plan.html", docs.plan_html.as_bytes())?,
     ];
     dir.finish()?;
-    let witness = crate::witness::witness(&lock_path);
+    let witness = crate::witness::witness(
+        &lock_path,
+        sealed.to_text().as_bytes(),
+        &sealed.locked_at,
+        &data_path,
+    );
     Ok(LockOutcome {
         lock: sealed,
         lock_path,
@@ -136,7 +141,12 @@ fn lock_state(
         data_existed: lock.data.existed,
         data_sha256: lock.data.sha256.clone(),
         intact: lock.intact(),
-        witness: crate::witness::witness(&lock_path),
+        witness: crate::witness::witness(
+            &lock_path,
+            &bytes,
+            &lock.locked_at,
+            &plan_dir(&file.path).join(&file.plan.data.path),
+        ),
     };
     let changes = diff(&lock.plan_value(), &canonical_value(&file.plan));
     let state = if changes.is_empty() && record.intact {

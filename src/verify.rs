@@ -262,7 +262,7 @@ fn lock_items(analysis: &Path, recorded: &Results, plan_hash_now: &str) -> Resul
 
 fn describe_witness(w: &crate::witness::Witness) -> String {
     match w {
-        crate::witness::Witness::Committed { commit, date } => {
+        crate::witness::Witness::Committed { commit, date, .. } => {
             format!("first committed in {} on {date}", short(commit))
         }
         crate::witness::Witness::NotCommitted => "not committed".into(),

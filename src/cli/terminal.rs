@@ -82,7 +82,7 @@ pub fn locked(o: &LockOutcome) -> String {
             "not committed yet: `git add {0} && git commit -m \"Lock the analysis plan\"` gives the lock an outside date",
             o.lock_path.display()
         ),
-        crate::witness::Witness::Committed { commit, date } => format!("already in git: {commit} ({date})"),
+        crate::witness::Witness::Committed { commit, date, .. } => format!("already in git: {commit} ({date})"),
     });
     s
 }

@@ -143,7 +143,7 @@ fn status(r: &Results) -> String {
         }
         s.push(' ');
         s.push_str(&match &l.witness {
-            crate::witness::Witness::Committed { commit, date } => format!(
+            crate::witness::Witness::Committed { commit, date, .. } => format!(
                 "Outside record: the lock was first committed to git in `{}` on {}.",
                 escape(&commit[..commit.len().min(12)]),
                 escape(date_of(date))
