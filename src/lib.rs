@@ -9,6 +9,7 @@ pub mod analysis;
 pub mod cli;
 pub mod data;
 pub mod error;
+pub mod files;
 pub mod lock;
 pub mod output;
 pub mod pipeline;

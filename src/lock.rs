@@ -59,10 +59,19 @@ pub fn lock_path(analysis: &Path) -> PathBuf {
 impl LockFile {
     /// Seals a plan now (or at `SOURCE_DATE_EPOCH`).
     pub fn seal(file: &AnalysisFile, data_path: &Path) -> Result<LockFile> {
-        let data_hash = match std::fs::read(data_path) {
-            Ok(bytes) => Some(sha256_hex(&bytes)),
+        let data_hash = match std::fs::metadata(data_path) {
             Err(e) if e.kind() == std::io::ErrorKind::NotFound => None,
-            Err(e) => return Err(Failure::io("read the data file", data_path, &e)),
+            _ => {
+                let file = crate::files::open_regular(
+                    data_path,
+                    "read the data file",
+                    crate::files::Links::Follow,
+                )?;
+                Some(
+                    hash_stream(file)
+                        .map_err(|e| Failure::io("read the data file", data_path, &e))?,
+                )
+            }
         };
         let mut lock = LockFile {
             lock_format: LOCK_FORMAT,
@@ -106,7 +115,12 @@ impl LockFile {
 
     /// Reads a lock file. A lock that does not parse is reported as such.
     pub fn read(path: &Path) -> Result<(LockFile, Vec<u8>)> {
-        let bytes = std::fs::read(path).map_err(|e| Failure::io("read the lock", path, &e))?;
+        let bytes = crate::files::read_bounded(
+            path,
+            "read the lock",
+            crate::files::Links::Follow,
+            crate::files::MAX_LOCK,
+        )?;
         let lock: LockFile = serde_json::from_slice(&bytes).map_err(|e| {
             Failure::input(format!("the lock file cannot be read: {e}"))
                 .at(path, e.line().max(1), Some(e.column().max(1)))
@@ -127,6 +141,20 @@ impl LockFile {
     pub fn plan_value(&self) -> serde_json::Value {
         canonical_value(&self.plan)
     }
+}
+
+/// The SHA-256 (hex) of everything `r` yields, read in blocks.
+pub fn hash_stream(mut r: impl std::io::Read) -> std::io::Result<String> {
+    use sha2::Digest;
+    let mut h = sha2::Sha256::new();
+    let mut buf = vec![0u8; 1 << 16];
+    loop {
+        match r.read(&mut buf)? {
+            0 => break,
+            n => h.update(&buf[..n]),
+        }
+    }
+    Ok(crate::plan::canonical::hex(&h.finalize()))
 }
 
 /// The file-name part of a path, as text.

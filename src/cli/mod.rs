@@ -27,7 +27,7 @@ pub fn main() -> i32 {
     match dispatch(cli) {
         Ok(code) => code,
         Err(f) => {
-            eprintln!("{f}");
+            warn(&f.to_string());
             f.kind.exit_code()
         }
     }
@@ -41,6 +41,11 @@ fn say(s: &str) -> Result<()> {
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
         other => other.map_err(|e| Failure::internal(format!("cannot write to the terminal: {e}"))),
     }
+}
+
+/// Writes one line to standard error; a closed stderr is not worth a panic.
+fn warn(s: &str) {
+    let _ = writeln!(std::io::stderr().lock(), "{s}");
 }
 
 fn dispatch(cli: Cli) -> Result<i32> {
@@ -119,7 +124,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
             if files.len() == 1 && !expect_same {
                 let o = pipeline::run(&files[0], &opts)?;
                 for line in terminal::lock_warnings(&o.results) {
-                    eprintln!("{line}");
+                    warn(&line);
                 }
                 if json {
                     say(&terminal::run_json(&o))?;
@@ -178,7 +183,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
                     format!(
                         "{:<width$}  {}",
                         format!("\\{k}"),
-                        crate::values::plain(val)
+                        crate::error::clean(&crate::values::plain(val))
                     )
                 })
                 .collect();
@@ -191,9 +196,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
         } => {
             let v = crate::verify::verify(&report, plan.as_deref(), templates.as_deref())?;
             say(&terminal::verification(&v))?;
-            if !v.passed() {
-                return Ok(crate::error::Kind::Verification.exit_code());
-            }
+            return Ok(v.exit_code());
         }
     }
     Ok(0)

@@ -15,6 +15,7 @@ pub mod figures;
 pub mod markdown;
 mod plan_doc;
 pub mod planning;
+pub mod provenance;
 mod report;
 pub mod sentence;
 
