@@ -138,7 +138,7 @@ pub fn evidence(r: &Results) -> Vec<String> {
         out.push(if l.data_existed {
             "The lock records that the data file already existed when the plan was sealed.".into()
         } else {
-            "The lock records that the data file did not exist when the plan was sealed; that is the author's statement, and no mechanism proves the data were unseen.".into()
+            "The lock records that the data file did not exist when the plan was sealed; that is the author's statement.".into()
         });
     } else {
         out.push(
@@ -146,6 +146,7 @@ pub fn evidence(r: &Results) -> Vec<String> {
                 .into(),
         );
     }
+    out.push("No mechanism proves the data were unseen when the plan was written: a lock, a commit, a timestamp or a signature can show the plan existed by some time, never what its author had looked at.".into());
     out.push("The manifest (manifest.sha256) lists every file of this report with its SHA-256, so `attest verify` notices a file edited, added or removed after the run; it proves nothing about who ran it or when.".into());
     out
 }
