@@ -239,7 +239,7 @@ mod tests {
     #[test]
     fn control_characters_never_reach_the_terminal() {
         // ESC, BEL, CR and a right-to-left override (U+202E, the "Trojan
-        // Source" reordering character: Boucher & Anderson, 2021).
+        // Source" reordering character: Boucher & Anderson, USENIX Security 2023).
         let f =
             Failure::input("bad cell \"\u{1b}[31mred\u{7}\r\u{202e}x\"").help("fix \u{1b}]0;title");
         let s = f.to_string();

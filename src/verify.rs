@@ -133,24 +133,44 @@ fn locate(target: &Path) -> Result<(PathBuf, PathBuf)> {
     }
 }
 
+/// Refuses a report whose results.json names an analysis file that is not
+/// a bare file name, or a data file by an absolute path: a report handed
+/// over by someone else must not make `verify` read a file of their
+/// choosing elsewhere on this machine.
+fn refuse_foreign_paths(raw: &serde_json::Value, results_path: &Path) -> Result<()> {
+    if let Some(name) = raw.get("analysis_file").and_then(|v| v.as_str()) {
+        let p = Path::new(name);
+        let bare = p.components().count() == 1
+            && matches!(p.components().next(), Some(Component::Normal(_)));
+        if !bare {
+            return Err(Failure::input(format!(
+                "the results name the analysis file {}, which is not a plain file name",
+                crate::error::clean(name)
+            ))
+            .in_file(results_path)
+            .help("attest writes a bare file name there; a path that is absolute or climbs with `..` is refused. Pass --plan FILE to name the analysis file yourself"));
+        }
+    }
+    let data = raw.pointer("/data/path").and_then(|v| v.as_str());
+    if let Some(path) = data.filter(|p| Path::new(p).is_absolute()) {
+        return Err(Failure::input(format!(
+            "the results name the data file {}, an absolute path",
+            crate::error::clean(path)
+        ))
+        .in_file(results_path)
+        .help("a report meant to be checked elsewhere names its data relative to the analysis file; verify does not read absolute paths from a report"));
+    }
+    Ok(())
+}
+
 /// Where the analysis file named in results.json is: `plan` if given,
-/// else the current folder or `analyses/` below it. The name must be a
-/// bare file name: a report handed over by someone else must not make
-/// `verify` read a file of their choosing elsewhere on this machine.
+/// else the current folder or `analyses/` below it (the name is a bare
+/// file name: see [`refuse_foreign_paths`]).
 fn find_analysis(results: &Results, plan: Option<&Path>) -> Result<PathBuf> {
     if let Some(p) = plan {
         return Ok(p.to_path_buf());
     }
     let name = Path::new(&results.analysis_file);
-    let bare = name.components().count() == 1
-        && matches!(name.components().next(), Some(Component::Normal(_)));
-    if !bare {
-        return Err(Failure::input(format!(
-            "the results name the analysis file {}, which is not a plain file name",
-            crate::error::clean(&results.analysis_file)
-        ))
-        .help("attest writes a bare file name there; a path that is absolute or climbs with `..` is refused. Pass --plan FILE to name the analysis file yourself"));
-    }
     for dir in [PathBuf::from("."), PathBuf::from("analyses")] {
         let p = dir.join(name);
         if p.exists() {
@@ -217,21 +237,18 @@ pub fn verify(
         Links::Refuse,
         files::MAX_OUTPUT,
     )?;
-    let recorded: Results = serde_json::from_slice(&text).map_err(|e| {
+    let parse_error = |e: serde_json::Error| {
         Failure::input(format!("results.json cannot be read: {e}"))
             .at(&results_path, e.line().max(1), Some(e.column().max(1)))
             .help(
                 "results.json is written by `attest run`; restore it from the report you received",
             )
-    })?;
-    if Path::new(&recorded.data.path).is_absolute() {
-        return Err(Failure::input(format!(
-            "the results name the data file {}, an absolute path",
-            crate::error::clean(&recorded.data.path)
-        ))
-        .in_file(&results_path)
-        .help("a report that is meant to be checked elsewhere names its data relative to the analysis file; verify does not read absolute paths from a report"));
-    }
+    };
+    // The paths a report names are checked before anything else is read
+    // from it, whatever else its results.json holds.
+    let raw: serde_json::Value = serde_json::from_slice(&text).map_err(parse_error)?;
+    refuse_foreign_paths(&raw, &results_path)?;
+    let recorded: Results = serde_json::from_slice(&text).map_err(parse_error)?;
     let analysis = find_analysis(&recorded, plan)?;
     let root = boundary(&analysis)?;
     let mut items = Vec::new();

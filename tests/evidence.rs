@@ -223,7 +223,9 @@ fn verify_refuses_symlinks_in_the_report_and_paths_that_leave_the_folder() {
     let (code, text) = code_and_text(&c.attest(&["verify", "out/kiln"]));
     assert_eq!(code, 1, "{text}");
     assert!(
-        text.starts_with("error: the results name the analysis file ../kiln.toml"),
+        text.starts_with(
+            "error: out/kiln/results.json: the results name the analysis file ../kiln.toml"
+        ),
         "{text}"
     );
     assert!(text.contains("\nhelp: "), "{text}");
