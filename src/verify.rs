@@ -251,6 +251,11 @@ pub fn verify(
     let recorded: Results = serde_json::from_slice(&text).map_err(parse_error)?;
     let analysis = find_analysis(&recorded, plan)?;
     let root = boundary(&analysis)?;
+    if plan.is_none() {
+        // Found by the name in the report: a link out of the folder is
+        // refused like any other path that leaves it.
+        within(&root, &analysis, "analysis file")?;
+    }
     let mut items = Vec::new();
 
     let file = validate::load(&analysis)?;

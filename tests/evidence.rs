@@ -241,6 +241,18 @@ fn verify_refuses_symlinks_in_the_report_and_paths_that_leave_the_folder() {
         text.contains("lies outside the folder being verified"),
         "{text}"
     );
+
+    // The analysis file itself a link to one outside.
+    std::fs::write(secret.path().join("kiln.toml"), PLAN).unwrap();
+    std::fs::remove_file(c.path().join("kiln.toml")).unwrap();
+    std::os::unix::fs::symlink(secret.path().join("kiln.toml"), c.path().join("kiln.toml"))
+        .unwrap();
+    let (code, text) = code_and_text(&c.attest(&["verify", "out/kiln"]));
+    assert_eq!(code, 1, "{text}");
+    assert!(
+        text.contains("the analysis file kiln.toml lies outside the folder being verified"),
+        "{text}"
+    );
 }
 
 #[cfg(unix)]
