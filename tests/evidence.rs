@@ -534,7 +534,7 @@ fn backdated_commits_data_committed_first_and_vanished_witnesses_are_flagged() {
         "Caution: The commit is dated before the lock says it was written (2025-12-01)",
         "Caution: The data were committed before the plan",
         "The commit is not signed",
-        "No mechanism proves the data were unseen",
+        "no mechanism proves the data were unseen",
     ] {
         assert!(
             report.contains(said),

@@ -54,7 +54,7 @@ pub fn signature_sentence(s: &Signature) -> String {
             "The commit is not signed, so nothing shows who made it.".into()
         }
         Signature::Signed { format } => format!(
-            "The commit carries an {format} signature; attest does not check it: `git verify-commit` with the signer's public key does."
+            "The commit carries an {format} signature; attest does not check it; git verify-commit with the signer's public key does."
         ),
     }
 }
@@ -127,27 +127,27 @@ pub fn evidence(r: &Results) -> Vec<String> {
     let mut out = Vec::new();
     if let Some(l) = &r.lock_record {
         out.push(format!(
-            "The lock's own time ({}) is the author's clock when the lock was written; anyone can set that clock, so it shows nothing to an outsider by itself.",
+            "What the lock's time shows: {} is the author's clock when the lock was written; anyone can set that clock, so it shows nothing to an outsider by itself.",
             l.locked_at
         ));
-        out.push("The lock's self-hash catches accidental edits only: whoever edits a lock can recompute it.".into());
+        out.push("What the lock's self-hash shows: accidental edits only; whoever edits a lock can recompute it.".into());
         out.push(match &l.witness {
-            Witness::Committed { .. } => "The git commit shows the lock is part of that history and that the history has not been rewritten since others copied it; its dates are the committer's claim, not a third party's.".into(),
-            _ => "No git commit holds this lock, so no history vouches for when it was written.".into(),
+            Witness::Committed { .. } => "What the git commit shows: the lock is part of that history and that the history has not been rewritten since others copied it; its dates are the committer's claim, not a third party's.".into(),
+            _ => "What git shows: no commit holds this lock, so no history vouches for when it was written.".into(),
         });
         out.push(if l.data_existed {
-            "The lock records that the data file already existed when the plan was sealed.".into()
+            "What the lock says of the data: the data file already existed when the plan was sealed.".into()
         } else {
-            "The lock records that the data file did not exist when the plan was sealed; that is the author's statement.".into()
+            "What the lock says of the data: the data file did not exist when the plan was sealed; that is the author's statement.".into()
         });
     } else {
         out.push(
-            "There is no lock: nothing shows that this plan was written before the data were seen."
+            "What the lock shows: there is none, so nothing shows that this plan was written before the data were seen."
                 .into(),
         );
     }
-    out.push("No mechanism proves the data were unseen when the plan was written: a lock, a commit, a timestamp or a signature can show the plan existed by some time, never what its author had looked at.".into());
-    out.push("The manifest (manifest.sha256) lists every file of this report with its SHA-256, so `attest verify` notices a file edited, added or removed after the run; it proves nothing about who ran it or when.".into());
+    out.push("What nothing shows: no mechanism proves the data were unseen when the plan was written; a lock, a commit, a timestamp or a signature can show the plan existed by some time, never what its author had looked at.".into());
+    out.push("What the manifest shows: manifest.sha256 lists every file of this report with its SHA-256, so attest verify notices a file edited, added or removed after the run; it proves nothing about who ran it or when.".into());
     out
 }
 
