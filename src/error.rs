@@ -11,6 +11,7 @@
 //! | 1 | bad input: the plan, the data, the lock or the command line |
 //! | 2 | verification failed: something did not reproduce or changed |
 //! | 3 | an internal error or an I/O failure of the machine (disk full, …) |
+//! | 4 | `verify` cannot confirm an outside record the report claims (a git commit that is gone); nothing was found to differ |
 
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -24,6 +25,9 @@ pub enum Kind {
     Verification,
     /// Something failed that the user could not have caused (exit 3).
     Internal,
+    /// `verify` found nothing changed but cannot confirm an outside record
+    /// the report claims, such as its git commit (exit 4).
+    Unconfirmed,
 }
 
 impl Kind {
@@ -33,6 +37,7 @@ impl Kind {
             Kind::Input => 1,
             Kind::Verification => 2,
             Kind::Internal => 3,
+            Kind::Unconfirmed => 4,
         }
     }
 }
@@ -144,14 +149,41 @@ fn plain_io(err: &std::io::Error) -> String {
     }
 }
 
+/// `s` with every control character (and every Unicode character that
+/// reorders or hides text on a terminal) written as a visible escape such
+/// as `\u{1b}`, so text from a plan, a data cell or a file name can never
+/// steer the terminal or forge a line. Tabs become `\t`, newlines `\n`.
+pub fn clean(s: &str) -> std::borrow::Cow<'_, str> {
+    fn unsafe_char(c: char) -> bool {
+        c.is_control()
+            || matches!(c, '\u{200e}' | '\u{200f}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}')
+    }
+    if !s.chars().any(unsafe_char) {
+        return std::borrow::Cow::Borrowed(s);
+    }
+    let mut out = String::with_capacity(s.len() + 8);
+    for c in s.chars() {
+        match c {
+            '\n' => out.push_str("\\n"),
+            '\t' => out.push_str("\\t"),
+            c if unsafe_char(c) => out.push_str(&format!("\\u{{{:x}}}", c as u32)),
+            c => out.push(c),
+        }
+    }
+    std::borrow::Cow::Owned(out)
+}
+
 impl fmt::Display for Failure {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        // A message is one line: a line break inside it (from a quoted
+        // cell, say) shows as `\n` and cannot forge a `help:` line.
+        let what = clean(&self.what);
         match &self.location {
-            Some(loc) => write!(f, "error: {loc}: {}", self.what)?,
-            None => write!(f, "error: {}", self.what)?,
+            Some(loc) => write!(f, "error: {}: {what}", clean(&loc.to_string()))?,
+            None => write!(f, "error: {what}")?,
         }
         if let Some(help) = &self.help {
-            write!(f, "\nhelp: {help}")?;
+            write!(f, "\nhelp: {}", clean(help))?;
         }
         Ok(())
     }
@@ -240,6 +272,20 @@ mod tests {
         assert!(s.starts_with(&"x".repeat(QUOTE_LIMIT)), "{s}");
         assert!(s.ends_with("… (40 more characters)"), "{s}");
         assert!(capped_message(&"y".repeat(10_000)).chars().count() < 320);
+    }
+
+    #[test]
+    fn control_characters_never_reach_the_terminal() {
+        // ESC, BEL, CR and a right-to-left override (U+202E, the "Trojan
+        // Source" reordering character: Boucher & Anderson, USENIX Security 2023).
+        let f =
+            Failure::input("bad cell \"\u{1b}[31mred\u{7}\r\u{202e}x\"").help("fix \u{1b}]0;title");
+        let s = f.to_string();
+        assert!(!s.chars().any(|c| c.is_control() && c != '\n'), "{s:?}");
+        assert!(s.contains("\\u{1b}[31mred\\u{7}\\u{d}\\u{202e}x"), "{s}");
+        assert_eq!(s.lines().count(), 2);
+        assert_eq!(clean("plain"), "plain");
+        assert_eq!(clean("a\nb"), "a\\nb");
     }
 
     #[test]

@@ -9,6 +9,7 @@ pub(crate) mod analysis;
 pub mod cli;
 pub mod data;
 pub mod error;
+pub mod files;
 pub mod lock;
 pub(crate) mod output;
 pub(crate) mod pipeline;

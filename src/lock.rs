@@ -15,7 +15,7 @@ use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
 
 /// Version of the lock-file format.
-pub(crate) const LOCK_FORMAT: u32 = 1;
+pub const LOCK_FORMAT: u32 = 1;
 
 /// The lock file's content.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -52,17 +52,26 @@ pub struct LockedData {
 }
 
 /// The lock path for an analysis file: same folder, same stem, `.lock`.
-pub(crate) fn lock_path(analysis: &Path) -> PathBuf {
+pub fn lock_path(analysis: &Path) -> PathBuf {
     analysis.with_extension("lock")
 }
 
 impl LockFile {
     /// Seals a plan now (or at `SOURCE_DATE_EPOCH`).
-    pub(crate) fn seal(file: &AnalysisFile, data_path: &Path) -> Result<LockFile> {
-        let data_hash = match std::fs::read(data_path) {
-            Ok(bytes) => Some(sha256_hex(&bytes)),
+    pub fn seal(file: &AnalysisFile, data_path: &Path) -> Result<LockFile> {
+        let data_hash = match std::fs::metadata(data_path) {
             Err(e) if e.kind() == std::io::ErrorKind::NotFound => None,
-            Err(e) => return Err(Failure::io("read the data file", data_path, &e)),
+            _ => {
+                let file = crate::files::open_regular(
+                    data_path,
+                    "read the data file",
+                    crate::files::Links::Follow,
+                )?;
+                Some(
+                    hash_stream(file)
+                        .map_err(|e| Failure::io("read the data file", data_path, &e))?,
+                )
+            }
         };
         let mut lock = LockFile {
             lock_format: LOCK_FORMAT,
@@ -84,7 +93,7 @@ impl LockFile {
     }
 
     /// The hash of everything but `content_sha256`.
-    pub(crate) fn own_hash(&self) -> String {
+    pub fn own_hash(&self) -> String {
         let mut v = serde_json::to_value(self).expect("a lock always serialises");
         if let Some(map) = v.as_object_mut() {
             map.remove("content_sha256");
@@ -93,20 +102,25 @@ impl LockFile {
     }
 
     /// Whether the stored plan and content hashes match the content.
-    pub(crate) fn intact(&self) -> bool {
+    pub fn intact(&self) -> bool {
         self.content_sha256 == self.own_hash() && self.plan_sha256 == plan_hash(&self.plan)
     }
 
     /// The lock as written to disk (pretty JSON, trailing newline).
-    pub(crate) fn to_text(&self) -> String {
+    pub fn to_text(&self) -> String {
         let mut s = serde_json::to_string_pretty(self).expect("a lock always serialises");
         s.push('\n');
         s
     }
 
     /// Reads a lock file. A lock that does not parse is reported as such.
-    pub(crate) fn read(path: &Path) -> Result<(LockFile, Vec<u8>)> {
-        let bytes = std::fs::read(path).map_err(|e| Failure::io("read the lock", path, &e))?;
+    pub fn read(path: &Path) -> Result<(LockFile, Vec<u8>)> {
+        let bytes = crate::files::read_bounded(
+            path,
+            "read the lock",
+            crate::files::Links::Follow,
+            crate::files::MAX_LOCK,
+        )?;
         let lock: LockFile = serde_json::from_slice(&bytes).map_err(|e| {
             Failure::input(format!("the lock file cannot be read: {e}"))
                 .at(path, e.line().max(1), Some(e.column().max(1)))
@@ -124,13 +138,27 @@ impl LockFile {
     }
 
     /// The canonical plan value stored in the lock.
-    pub(crate) fn plan_value(&self) -> serde_json::Value {
+    pub fn plan_value(&self) -> serde_json::Value {
         canonical_value(&self.plan)
     }
 }
 
+/// The SHA-256 (hex) of everything `r` yields, read in blocks.
+pub fn hash_stream(mut r: impl std::io::Read) -> std::io::Result<String> {
+    use sha2::Digest;
+    let mut h = sha2::Sha256::new();
+    let mut buf = vec![0u8; 1 << 16];
+    loop {
+        match r.read(&mut buf)? {
+            0 => break,
+            n => h.update(&buf[..n]),
+        }
+    }
+    Ok(crate::plan::canonical::hex(&h.finalize()))
+}
+
 /// The file-name part of a path, as text.
-pub(crate) fn file_name(path: &Path) -> String {
+pub fn file_name(path: &Path) -> String {
     path.file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default()
@@ -138,7 +166,7 @@ pub(crate) fn file_name(path: &Path) -> String {
 
 /// Seconds since the Unix epoch: `SOURCE_DATE_EPOCH` if set and valid,
 /// otherwise the system clock.
-pub(crate) fn now_epoch() -> i64 {
+pub fn now_epoch() -> i64 {
     if let Ok(s) = std::env::var("SOURCE_DATE_EPOCH") {
         if let Ok(v) = s.trim().parse::<i64>() {
             return v;
@@ -154,7 +182,7 @@ pub(crate) fn now_epoch() -> i64 {
 ///
 /// Civil-from-days conversion after Hinnant (2013), "chrono-Compatible
 /// Low-Level Date Algorithms".
-pub(crate) fn rfc3339_utc(epoch: i64) -> String {
+pub fn rfc3339_utc(epoch: i64) -> String {
     let days = epoch.div_euclid(86_400);
     let secs = epoch.rem_euclid(86_400);
     let z = days + 719_468;

@@ -6,7 +6,7 @@ use crate::analysis;
 use crate::data;
 use crate::error::{Failure, Result};
 use crate::lock::{self, LockFile};
-use crate::output::{create_new, OutDir};
+use crate::output::{self, create_new};
 use crate::plan::canonical::{canonical_value, diff, plan_hash, sha256_hex};
 use crate::plan::{validate, AnalysisFile};
 use crate::render;
@@ -86,20 +86,46 @@ pub(crate) fn lock(
     }
     let data_path = plan_dir(path).join(&file.plan.data.path);
     let sealed = LockFile::seal(&file, &data_path)?;
-    let planned = planned_sizes(&file.plan)?;
-    let docs = render::render_plan(&sealed, &planned, templates)?;
-    create_new(&lock_path, sealed.to_text().as_bytes())?;
+    let docs = plan_documents(&sealed, templates)?;
     let out_dir = out
         .map(Path::to_path_buf)
         .unwrap_or_else(|| default_out(path));
-    let mut dir = OutDir::open(&out_dir, force)?;
-    let written = vec![
-        lock_path.clone(),
-        dir.write("plan.md", docs.plan_md.as_bytes())?,
-        dir.write("plan.html", docs.plan_html.as_bytes())?,
-    ];
-    dir.finish()?;
-    let witness = crate::witness::witness(&lock_path);
+    // Everything is checked before anything is written: the output folder
+    // here, the lock's name by its exclusive creation just before the
+    // documents become visible. A refused lock leaves nothing behind.
+    let target = output::prepare(&out_dir, force)?;
+    // The rest of an earlier set in the folder stays with it (a report of
+    // an earlier lock is still a record); the manifest covers both.
+    let mut set = target.current_files(&["plan.md", "plan.html"])?;
+    set.extend(docs);
+    let text = sealed.to_text();
+    let created = std::cell::Cell::new(false);
+    let result = target.write(&set, || {
+        create_new(&lock_path, text.as_bytes())?;
+        created.set(true);
+        Ok(())
+    });
+    let set_written = match result {
+        Ok(w) => w,
+        Err(e) => {
+            if created.get() {
+                let _ = std::fs::remove_file(&lock_path);
+            }
+            return Err(e);
+        }
+    };
+    let mut written = vec![lock_path.clone()];
+    written.extend(
+        set_written
+            .into_iter()
+            .filter(|p| p.ends_with("plan.md") || p.ends_with("plan.html")),
+    );
+    let witness = crate::witness::witness(
+        &lock_path,
+        sealed.to_text().as_bytes(),
+        &sealed.locked_at,
+        &data_path,
+    );
     Ok(LockOutcome {
         lock: sealed,
         lock_path,
@@ -134,7 +160,12 @@ fn lock_state(
         data_existed: lock.data.existed,
         data_sha256: lock.data.sha256.clone(),
         intact: lock.intact(),
-        witness: crate::witness::witness(&lock_path),
+        witness: crate::witness::witness(
+            &lock_path,
+            &bytes,
+            &lock.locked_at,
+            &plan_dir(&file.path).join(&file.plan.data.path),
+        ),
     };
     let changes = diff(&lock.plan_value(), &canonical_value(&file.plan));
     let state = if changes.is_empty() && record.intact {
@@ -198,29 +229,43 @@ fn outside(plan_dir: &Path, data: &Path) -> bool {
     }
 }
 
-/// The bytes of every output of a run, by relative file name, in the
-/// order they are written (`results.json` last, so its presence means the
-/// run completed).
+/// The preregistration documents of a lock: `plan.md` and `plan.html`.
+fn plan_documents(lock: &LockFile, templates: Option<&Path>) -> Result<Vec<(String, Vec<u8>)>> {
+    let planned = planned_sizes(&lock.plan)?;
+    let docs = render::render_plan(lock, &planned, templates)?;
+    Ok(vec![
+        ("plan.md".into(), docs.plan_md.into_bytes()),
+        ("plan.html".into(), docs.plan_html.into_bytes()),
+    ])
+}
+
+/// The bytes of every output of a run, by relative file name: the
+/// preregistration documents of the lock (when there is one, rendered
+/// afresh so the set is whole), the figures, values, reports, and
+/// `results.json`.
 pub(crate) fn render_outputs(
     results: &Results,
     templates: Option<&Path>,
+    analysis: &Path,
 ) -> Result<Vec<(String, Vec<u8>)>> {
-    Ok(render::render_run(results, templates)?
-        .into_iter()
-        .map(|o| (o.name, o.bytes))
-        .collect())
+    let mut files = match results.lock {
+        LockState::Unlocked => Vec::new(),
+        _ => plan_documents(&LockFile::read(&lock::lock_path(analysis))?.0, templates)?,
+    };
+    files.extend(
+        render::render_run(results, templates)?
+            .into_iter()
+            .map(|o| (o.name, o.bytes)),
+    );
+    Ok(files)
 }
 
 /// `attest run` for one analysis file.
 pub(crate) fn run(path: &Path, opts: &RunOptions) -> Result<RunOutcome> {
     let results = compute(path, opts.unlocked)?;
-    let files = render_outputs(&results, opts.templates.as_deref())?;
+    let files = render_outputs(&results, opts.templates.as_deref(), path)?;
     let out_dir = opts.out.clone().unwrap_or_else(|| default_out(path));
-    let mut dir = OutDir::open(&out_dir, opts.force)?;
-    for (name, bytes) in &files {
-        dir.write(name, bytes)?;
-    }
-    dir.finish()?;
+    output::prepare(&out_dir, opts.force)?.write(&files, || Ok(()))?;
     Ok(RunOutcome { results, out_dir })
 }
 
@@ -276,7 +321,9 @@ fn collect_toml(dir: &Path, out: &mut Vec<PathBuf>) -> Result<()> {
 /// writing nothing. Returns the names of files that differ or are missing.
 pub(crate) fn unchanged(path: &Path, opts: &RunOptions) -> Result<(Results, Vec<String>)> {
     let results = compute(path, opts.unlocked)?;
-    let files = render_outputs(&results, opts.templates.as_deref())?;
+    let mut files = render_outputs(&results, opts.templates.as_deref(), path)?;
+    let manifest = output::manifest_text(&files);
+    files.push((output::MANIFEST.into(), manifest.into_bytes()));
     let out_dir = opts.out.clone().unwrap_or_else(|| default_out(path));
     let differing = files
         .iter()

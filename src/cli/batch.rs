@@ -2,7 +2,7 @@
 //! terminal, and a summary table at the end. Every analysis that can
 //! produce its outputs does, whatever happens to the others.
 
-use crate::error::{Kind, Result};
+use crate::error::{clean, Kind, Result};
 use crate::pipeline::{self, RunOptions};
 use crate::results::{Decision, LockState};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
@@ -51,7 +51,7 @@ pub(crate) fn run(
         .max()
         .unwrap_or(0);
     if !quiet || worst != 0 {
-        println!("{}", table(&rows));
+        super::say(&table(&rows))?;
     }
     Ok(worst)
 }
@@ -109,7 +109,7 @@ fn one(file: &Path, opts: &RunOptions, expect_same: bool) -> Row {
 fn table(rows: &[Row]) -> String {
     let w = |f: fn(&Row) -> &str, head: &str| {
         rows.iter()
-            .map(|r| f(r).chars().count())
+            .map(|r| clean(f(r)).chars().count())
             .max()
             .unwrap_or(0)
             .max(head.len())
@@ -126,7 +126,10 @@ fn table(rows: &[Row]) -> String {
     for r in rows {
         let line = format!(
             "{:<wf$}  {:<ws$}  {:<wh$}  {}",
-            r.file, r.status, r.hypotheses, r.problem
+            clean(&r.file),
+            r.status,
+            r.hypotheses,
+            clean(&r.problem)
         );
         s.push_str(line.trim_end());
         s.push('\n');

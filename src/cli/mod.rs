@@ -18,7 +18,7 @@ pub fn main() -> i32 {
         Ok(c) => c,
         Err(e) => {
             if let Some(f) = one_sided_without_direction(&e) {
-                tell(&f.to_string());
+                warn(&f.to_string());
                 return f.kind.exit_code();
             }
             // clap prints help/version to stdout (exit 0) and usage errors to
@@ -31,7 +31,7 @@ pub fn main() -> i32 {
     match dispatch(cli) {
         Ok(code) => code,
         Err(f) => {
-            tell(&f.to_string());
+            warn(&f.to_string());
             f.kind.exit_code()
         }
     }
@@ -69,14 +69,6 @@ fn one_sided_without_direction(e: &clap::Error) -> Option<Failure> {
     )
 }
 
-/// Writes one message and a newline to standard error. A closed standard
-/// error (`attest run x.toml 2>&-`, a reader that went away) is not worth a
-/// panic: the exit code still tells what happened.
-fn tell(s: &str) {
-    let mut err = std::io::stderr().lock();
-    let _ = writeln!(err, "{s}");
-}
-
 /// Writes one block of text and a newline to standard output.
 fn say(s: &str) -> Result<()> {
     let mut out = std::io::stdout().lock();
@@ -85,6 +77,11 @@ fn say(s: &str) -> Result<()> {
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
         other => other.map_err(|e| Failure::internal(format!("cannot write to the terminal: {e}"))),
     }
+}
+
+/// Writes one line to standard error; a closed stderr is not worth a panic.
+fn warn(s: &str) {
+    let _ = writeln!(std::io::stderr().lock(), "{s}");
 }
 
 fn dispatch(cli: Cli) -> Result<i32> {
@@ -163,7 +160,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
             if files.len() == 1 && !expect_same {
                 let o = pipeline::run(&files[0], &opts)?;
                 for line in terminal::lock_warnings(&o.results) {
-                    tell(&line);
+                    warn(&line);
                 }
                 if json {
                     say(&terminal::run_json(&o))?;
@@ -222,7 +219,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
                     format!(
                         "{:<width$}  {}",
                         format!("\\{k}"),
-                        crate::render::values::plain(val)
+                        crate::error::clean(&crate::render::values::plain(val))
                     )
                 })
                 .collect();
@@ -235,9 +232,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
         } => {
             let v = crate::verify::verify(&report, plan.as_deref(), templates.as_deref())?;
             say(&terminal::verification(&v))?;
-            if !v.passed() {
-                return Ok(crate::error::Kind::Verification.exit_code());
-            }
+            return Ok(v.exit_code());
         }
     }
     Ok(0)

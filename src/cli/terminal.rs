@@ -1,6 +1,7 @@
 //! What the commands print on the terminal: short, aligned, in attest's
 //! own voice. Numbers are formatted by the same APA rules as the reports.
 
+use crate::error::clean;
 use crate::pipeline::{LockOutcome, RunOutcome};
 use crate::plan::{AnalysisFile, Comparison};
 use crate::render::view::apa;
@@ -11,16 +12,20 @@ pub(crate) fn plan_summary(f: &AnalysisFile) -> String {
     let p = &f.plan;
     let mut s = format!(
         "plan: {} — \"{}\"\n  alpha {}  confidence {}  correction {}  check_alpha {}\n  data: {}\n",
-        f.path.display(),
-        p.title,
+        clean(&f.path.display().to_string()),
+        clean(&p.title),
         p.alpha,
         p.confidence,
         p.correction.as_str(),
         p.check_alpha,
-        p.data.path
+        clean(&p.data.path)
     );
     for r in &p.exclude {
-        s.push_str(&format!("  exclude: {} ({})\n", r.reason, r.column));
+        s.push_str(&format!(
+            "  exclude: {} ({})\n",
+            clean(&r.reason),
+            clean(&r.column)
+        ));
     }
     for h in &p.hypotheses {
         let what = match &h.comparison {
@@ -49,10 +54,10 @@ pub(crate) fn plan_summary(f: &AnalysisFile) -> String {
             .unwrap_or_default();
         s.push_str(&format!(
             "  {}  {}  {}  {}{}\n",
-            h.id,
+            clean(&h.id),
             h.method.as_str(),
             h.alternative.as_str(),
-            what,
+            clean(&what),
             eq
         ));
     }
@@ -64,7 +69,7 @@ pub(crate) fn plan_summary(f: &AnalysisFile) -> String {
 pub(crate) fn locked(o: &LockOutcome) -> String {
     let mut s = format!(
         "locked: {}\n  plan sha256 {}\n  at {}\n",
-        o.lock_path.display(),
+        clean(&o.lock_path.display().to_string()),
         o.lock.plan_sha256,
         o.lock.locked_at
     );
@@ -74,15 +79,21 @@ pub(crate) fn locked(o: &LockOutcome) -> String {
         "  the data file did not exist yet at lock time\n"
     });
     for p in o.written.iter().skip(1) {
-        s.push_str(&format!("plan document: {}\n", p.display()));
+        s.push_str(&format!(
+            "plan document: {}\n",
+            clean(&p.display().to_string())
+        ));
     }
     s.push_str(&match &o.witness {
         crate::witness::Witness::NoGit => "no git work tree here: keep the lock somewhere others can date it (e-mail it, or commit it to version control)".to_string(),
         crate::witness::Witness::NotCommitted => format!(
             "not committed yet: `git add {0} && git commit -m \"Lock the analysis plan\"` gives the lock an outside date",
-            o.lock_path.display()
+            clean(&o.lock_path.display().to_string())
         ),
-        crate::witness::Witness::Committed { commit, date } => format!("already in git: {commit} ({date})"),
+        w @ crate::witness::Witness::Committed { .. } => format!(
+            "already in git: {}",
+            crate::render::view::provenance::witness_line(w)
+        ),
     });
     s
 }
@@ -102,7 +113,14 @@ pub(crate) fn lock_warnings(r: &Results) -> Vec<String> {
         let fields: Vec<String> = r
             .changes
             .iter()
-            .map(|c| format!("{} ({} → {})", c.field, c.locked, c.current))
+            .map(|c| {
+                format!(
+                    "{} ({} → {})",
+                    clean(&c.field),
+                    clean(&c.locked),
+                    clean(&c.current)
+                )
+            })
             .collect();
         out.push(format!(
             "lock: plan differs from the lock in {}",
@@ -130,7 +148,7 @@ pub(crate) fn run_summary(o: &RunOutcome, colour: bool) -> String {
     let width = r
         .hypotheses
         .iter()
-        .map(|h| h.id.chars().count())
+        .map(|h| clean(&h.id).chars().count())
         .max()
         .unwrap_or(2);
     for h in &r.hypotheses {
@@ -146,7 +164,7 @@ pub(crate) fn run_summary(o: &RunOutcome, colour: bool) -> String {
         };
         s.push_str(&format!(
             "{:<width$}  {}  diff {} {}  {} {}  p {}  {}\n",
-            h.id,
+            clean(&h.id),
             h.method.as_str(),
             apa::two(est.value),
             apa::bounds(est.ci_low, est.ci_high, apa::two),
@@ -158,31 +176,35 @@ pub(crate) fn run_summary(o: &RunOutcome, colour: bool) -> String {
     }
     s.push_str(&format!(
         "report: {}",
-        o.out_dir.join("report.html").display()
+        clean(&o.out_dir.join("report.html").display().to_string())
     ));
     s
 }
 
 /// `attest verify`: one line per item, then the verdict.
 pub(crate) fn verification(v: &crate::verify::Verification) -> String {
-    let mut s = format!("verify: {}\n", v.analysis.display());
+    use crate::verify::Outcome;
+    let mut s = format!("verify: {}\n", clean(&v.analysis.display().to_string()));
     let width = v
         .items
         .iter()
-        .map(|i| i.what.chars().count())
+        .map(|i| clean(&i.what).chars().count())
         .max()
         .unwrap_or(4);
     for i in &v.items {
-        match (&i.changed, &i.note) {
-            (None, Some(note)) => s.push_str(&format!("  {:<width$}  {note}\n", i.what)),
-            (None, None) => s.push_str(&format!("  {:<width$}  same\n", i.what)),
-            (Some(how), _) => s.push_str(&format!("  {:<width$}  changed: {how}\n", i.what)),
-        }
+        let what = clean(&i.what);
+        let said = match &i.outcome {
+            Outcome::Same => "same".to_string(),
+            Outcome::Note(note) => clean(note).into_owned(),
+            Outcome::Changed { how, .. } => format!("changed: {}", clean(how)),
+            Outcome::CannotConfirm(why) => format!("cannot confirm: {}", clean(why)),
+        };
+        s.push_str(&format!("  {what:<width$}  {said}\n"));
     }
-    s.push_str(if v.passed() {
-        "the report reproduces"
-    } else {
-        "the report does NOT reproduce"
+    s.push_str(match v.exit_code() {
+        0 => "the report reproduces",
+        4 => "the outputs reproduce, but an outside record the report claims cannot be confirmed",
+        _ => "the report does NOT reproduce",
     });
     s
 }

@@ -221,10 +221,19 @@ pub fn load(plan: &Plan, plan_dir: &Path) -> Result<Dataset> {
     let (table, sha256) = match plan.data.format {
         DataFormat::Delimited => read::read_delimited_file(&path, &display, &plan.data, &wanted)?,
         DataFormat::Xlsx => {
-            let bytes = std::fs::read(&path).map_err(|e| {
-                Failure::io("read the data file", &path, &e)
-                    .help("check `path` in [data]; it is relative to the analysis file")
-            })?;
+            let mut bytes = Vec::new();
+            std::io::Read::read_to_end(
+                &mut crate::files::open_regular(
+                    &path,
+                    "read the data file",
+                    crate::files::Links::Follow,
+                )
+                .map_err(|f| {
+                    f.help("check `path` in [data]; it is relative to the analysis file")
+                })?,
+                &mut bytes,
+            )
+            .map_err(|e| Failure::io("read the data file", &path, &e))?;
             let sha256 = crate::plan::canonical::sha256_hex(&bytes);
             (
                 xlsx::read_xlsx(bytes, &display, &plan.data, &wanted)?,

@@ -53,10 +53,8 @@ pub(crate) fn read_delimited_file(
     spec: &DataSpec,
     wanted: &[Use],
 ) -> Result<(Table, String)> {
-    let file = std::fs::File::open(path).map_err(|e| {
-        Failure::io("read the data file", path, &e)
-            .help("check `path` in [data]; it is relative to the analysis file")
-    })?;
+    let file = crate::files::open_regular(path, "read the data file", crate::files::Links::Follow)
+        .map_err(|f| f.help("check `path` in [data]; it is relative to the analysis file"))?;
     let io = |e: std::io::Error| Failure::io("read the data file", path, &e);
     read_stream(file, source, spec, wanted, Limits::default(), io)
 }

@@ -19,10 +19,13 @@ pub const MAX_HYPOTHESES: usize = 200;
 /// Reads, parses and validates an analysis file.
 pub(crate) fn load(path: &Path) -> Result<AnalysisFile> {
     refuse_other_kinds(path)?;
-    let bytes = std::fs::read(path).map_err(|e| {
-        Failure::io("read the analysis file", path, &e)
-            .help("check the path; analysis files usually live in analyses/")
-    })?;
+    let bytes = crate::files::read_bounded(
+        path,
+        "read the analysis file",
+        crate::files::Links::Follow,
+        crate::files::MAX_PLAN,
+    )
+    .map_err(|f| f.help("check the path; analysis files usually live in analyses/"))?;
     let text = String::from_utf8(bytes).map_err(|e| {
         let (line, col) = line_col(
             &String::from_utf8_lossy(e.as_bytes()),

@@ -12,6 +12,7 @@
 
 pub(crate) mod apa;
 pub(crate) mod planning;
+pub(crate) mod provenance;
 pub(crate) mod sentence;
 
 use self::apa::{sym, two};
@@ -240,20 +241,10 @@ fn status(r: &Results) -> String {
                 " The lock file does not match its own hash: it was edited after it was written.",
             );
         }
-        s.push(' ');
-        s.push_str(&match &l.witness {
-            crate::witness::Witness::Committed { commit, date } => format!(
-                "Outside record: the lock was first committed to git in `{}` on {}.",
-                escape(&commit[..commit.len().min(12)]),
-                escape(date_of(date))
-            ),
-            crate::witness::Witness::NotCommitted => {
-                "Outside record: the lock is not committed to git yet, so only its own date vouches for it.".into()
-            }
-            crate::witness::Witness::NoGit => {
-                "Outside record: none; the analysis is not in a git work tree.".into()
-            }
-        });
+        for w in provenance::witness_sentences(&l.witness) {
+            s.push(' ');
+            s.push_str(&escape(&w));
+        }
     }
     s
 }
@@ -614,6 +605,7 @@ fn provenance(r: &Results) -> Vec<Value> {
     }
     out.push(md(format!("Data SHA-256: `{}`", r.data.sha256)));
     out.push(md(format!("Seed: {}", r.plan.seed)));
+    out.extend(provenance::evidence(r).iter().map(|e| md(escape(e))));
     out
 }
 
