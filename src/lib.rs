@@ -16,6 +16,7 @@ pub mod plan;
 pub mod planning;
 pub mod render;
 pub mod results;
+pub mod seal;
 pub mod starter;
 pub mod stats;
 pub mod values;
