@@ -90,7 +90,7 @@ impl Covers {
 
 /// The file a token of this kind and number lives in.
 pub fn token_path(lock_path: &Path, covers: Covers, n: usize) -> PathBuf {
-    lock_dir(lock_path).join(format!(
+    lock_path.with_file_name(format!(
         "{}.{}-stamp-{n}.tst",
         lock_stem(lock_path),
         covers.word()
@@ -762,39 +762,30 @@ pub fn check(lock_path: &Path, lock_bytes: &[u8], roots: Option<&Roots>) -> Vec<
                 Covers::Plan => Some(lock.plan_sha256.clone()),
                 Covers::Data => data_hash.clone(),
             };
-            let (status, text, time) = one(&path, covers, expected.as_deref(), roots);
-            if let Some(t) = time {
-                match covers {
-                    Covers::Plan => {
-                        first_plan_time = Some(first_plan_time.map_or(t, |f: i64| f.min(t)))
-                    }
-                    Covers::Data => {}
-                }
+            let (status, seen, anchor, time) = one(&path, covers, expected.as_deref(), roots);
+            if let (Some(t), Covers::Plan) = (time, covers) {
+                first_plan_time = Some(first_plan_time.map_or(t, |f: i64| f.min(t)));
             }
-            let (status, text) = match (status, time, covers) {
-                (Status::Bad, ..) => (status, text),
-                (_, Some(t), Covers::Plan) => match locked_at {
-                    Some(l) if t + CLOCK_SKEW < l => (
-                        Status::Bad,
-                        format!(
-                            "{text}; but that is {} before the lock's own time {}: the lock's time is not what the authority saw",
-                            span(l - t),
-                            lock.locked_at
-                        ),
-                    ),
-                    Some(l) => (status, format!("{text} ({} after the lock's own time)", span(t - l))),
-                    None => (status, text),
-                },
-                (_, Some(t), Covers::Data) => match first_plan_time {
-                    Some(p) if t < p => (
-                        status,
-                        format!("{text}; earlier than the first plan stamp"),
-                    ),
-                    Some(p) => (status, format!("{text} ({} after the first plan stamp)", span(t - p))),
-                    None => (status, text),
-                },
-                _ => (status, text),
+            let (against, base) = match covers {
+                Covers::Plan => (locked_at, "the lock's own time"),
+                Covers::Data => (first_plan_time, "the first plan stamp"),
             };
+            let (status, relation) = match (time, against) {
+                (Some(t), Some(l)) if covers == Covers::Plan && t + CLOCK_SKEW < l => (
+                    Status::Bad,
+                    format!(
+                        ", {} before the lock's own time {}: the lock's time is not what the authority saw",
+                        span(l - t),
+                        lock.locked_at
+                    ),
+                ),
+                (Some(t), Some(l)) if t < l => {
+                    (status, format!(" ({} before {base})", span(l - t)))
+                }
+                (Some(t), Some(l)) => (status, format!(" ({} after {base})", span(t - l))),
+                _ => (status, String::new()),
+            };
+            let text = format!("{seen}{relation}{anchor}");
             out.push(Finding::new(what, status, text));
         }
     }
@@ -820,8 +811,8 @@ fn one(
     covers: Covers,
     expected: Option<&str>,
     roots: Option<&Roots>,
-) -> (Status, String, Option<i64>) {
-    let bad = |t: String| (Status::Bad, t, None);
+) -> (Status, String, String, Option<i64>) {
+    let bad = |t: String| (Status::Bad, t, String::new(), None);
     let name = path
         .file_name()
         .map(|n| printable(&n.to_string_lossy()))
@@ -845,7 +836,7 @@ fn one(
         Some(e) if e == got => {}
         Some(e) => {
             return bad(format!(
-                "{name} covers a different hash: sha256 {} is not the {} 's {}",
+                "{name} covers a different hash: sha256 {} is not the {}'s {}",
                 short(&got),
                 covers.word(),
                 short(e)
@@ -858,9 +849,11 @@ fn one(
             ))
         }
     }
-    let cert = match p.verify_signature() {
+    // The certificate's purpose and dates first: they say precisely what
+    // is wrong with a certificate whatever else is wrong with the token.
+    let cert = match p.signer_cert() {
         Ok(c) => c,
-        Err(e) => return bad(format!("{name}: the token's signature {e}")),
+        Err(e) => return bad(format!("{name}: the token {e}")),
     };
     let subject = printable(&cert.tbs_certificate.subject.to_string());
     if let Err(e) = check_purpose(cert) {
@@ -878,6 +871,9 @@ fn one(
             crate::lock::rfc3339_utc(to)
         ));
     }
+    if let Err(e) = p.verify_signature() {
+        return bad(format!("{name}: the token's signature {e}"));
+    }
     let seen = format!(
         "{} sha256 {} seen by {subject} by {}",
         covers.word(),
@@ -887,8 +883,9 @@ fn one(
     match roots {
         None => (
             Status::Unanchored,
+            seen,
             format!(
-                "{seen}; unanchored: certificate sha256 {} not checked against roots you trust (pass --tsa-roots FILE)",
+                "; unanchored: certificate sha256 {} not checked against roots you trust (pass --tsa-roots FILE)",
                 short(&fingerprint(cert))
             ),
             Some(t),
@@ -896,7 +893,8 @@ fn one(
         Some(r) => match chain(cert, &p.certs(), r, t) {
             Ok(root) => (
                 Status::Good,
-                format!("{seen}, chained to {}", printable(&root)),
+                seen,
+                format!(", chained to {}", printable(&root)),
                 Some(t),
             ),
             Err(e) => bad(format!(
