@@ -137,6 +137,7 @@ fn lock_state(
         data_sha256: lock.data.sha256.clone(),
         intact: lock.intact(),
         witness: crate::witness::witness(&lock_path),
+        evidence: crate::seal::evidence(&lock_path),
     };
     let changes = diff(&lock.plan_value(), &canonical_value(&file.plan));
     let state = if changes.is_empty() && record.intact {

@@ -195,6 +195,9 @@ pub fn verify(
     // outputs as of the recorded witness and report the current one.
     if let (Some(now), Some(then)) = (fresh.lock_record.as_mut(), recorded.lock_record.as_ref()) {
         let current = std::mem::replace(&mut now.witness, then.witness.clone());
+        // Evidence added beside the lock after the run is checked below
+        // (seal::check_all), not a change of the report.
+        now.evidence = then.evidence.clone();
         items.push(Item::note("lock in git", describe_witness(&current)));
     }
     let outputs = pipeline::render_outputs(&fresh, templates)?;

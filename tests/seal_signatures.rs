@@ -108,6 +108,13 @@ fn ssh_keygen_accepts_what_attest_signs() {
         );
         assert!(stdout(&a).contains(&fp), "{kind}: {}", stdout(&a));
         allow(&c, "allowed", &[("alice@example.org", "alice")]);
+        if kind == "ed25519" {
+            // The report lists the signature with what it shows.
+            c.attest(&["run", "--quiet", "sleep.toml"]).success();
+            assert!(c.read("out/sleep/report.md").contains(&format!(
+                "- sleep.lock.sig: The holder of the ssh-ed25519 key {fp} signed this lock file; this does not show when it was signed."
+            )));
+        }
         let (ok, text) = ssh_keygen(
             &c,
             &[

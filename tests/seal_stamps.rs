@@ -448,6 +448,35 @@ fn stamp_lock_run_and_verify_against_a_loopback_authority() {
     let data_hash = openssl_sha256(&c.path().join("sleep.csv"));
     openssl_accepts(&pki, &c.path().join("sleep.data-stamp-1.tst"), &data_hash);
 
+    // The report and results.json list each token, with what it shows.
+    let report = c.read("out/sleep/report.md");
+    for (file, covers) in [
+        ("sleep.plan-stamp-1.tst", "plan"),
+        ("sleep.plan-stamp-2.tst", "plan"),
+        ("sleep.data-stamp-1.tst", "data"),
+    ] {
+        assert!(
+            report.contains(&format!("- {file}: The time-stamping authority CN=Loopback TSA saw this {covers} hash by 20")),
+            "{report}"
+        );
+    }
+    assert!(report.contains(
+        "this shows it existed by then, not that the plan was written before the data were seen."
+    ));
+    let results: serde_json::Value =
+        serde_json::from_str(&c.read("out/sleep/results.json")).unwrap();
+    let ev = results["lock_record"]["evidence"].as_array().unwrap();
+    assert_eq!(ev.len(), 3);
+    assert_eq!(ev[0]["kind"], "timestamp");
+    assert_eq!(ev[0]["by"], "CN=Loopback TSA");
+    assert_eq!(ev[0]["covers"], format!("plan sha256 {hash}"));
+    assert_eq!(ev[2]["covers"], format!("data sha256 {data_hash}"));
+
+    // A stamp added after the run is checked, and the report still
+    // reproduces.
+    c.attest(&["stamp", "sleep.lock", "--tsa", &tsa.url])
+        .success();
+
     // Anchored in the root the user trusts.
     let a = c
         .attest(&["verify", "out/sleep", "--tsa-roots", &pki.file("ca.pem")])
@@ -456,6 +485,7 @@ fn stamp_lock_run_and_verify_against_a_loopback_authority() {
     for (what, covers, h, base) in [
         ("plan stamp 1", "plan", &hash, "the lock's own time"),
         ("plan stamp 2", "plan", &hash, "the lock's own time"),
+        ("plan stamp 3", "plan", &hash, "the lock's own time"),
         ("data stamp 1", "data", &data_hash, "the first plan stamp"),
     ] {
         let l = line(&out, what);

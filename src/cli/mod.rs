@@ -130,14 +130,10 @@ fn dispatch(cli: Cli) -> Result<i32> {
                     .help("run one analysis file with --tsa"));
             }
             if files.len() == 1 && !expect_same {
-                let stamps = (!tsa.is_empty())
-                    .then(|| crate::seal::before_run(&files[0], &tsa))
-                    .transpose()?;
-                let o = pipeline::run(&files[0], &opts)?;
-                if let Some((hash, tokens)) = &stamps {
-                    let d = &o.results.data.sha256;
-                    eprintln!("{}", crate::seal::after_run(&files[0], hash, d, tokens)?);
+                if !tsa.is_empty() {
+                    eprintln!("{}", crate::seal::stamp_data(&files[0], &tsa)?);
                 }
+                let o = pipeline::run(&files[0], &opts)?;
                 for line in terminal::lock_warnings(&o.results) {
                     eprintln!("{line}");
                 }

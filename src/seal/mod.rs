@@ -96,11 +96,58 @@ pub fn check_all(lock_path: &Path, options: &Options) -> Result<Vec<Finding>> {
     }
     let lock_bytes = match read_bounded(lock_path, MAX_LOCK) {
         Ok(b) => b,
-        Err(e) => return Ok(vec![Finding::new("evidence", Status::Bad, e.what)]),
+        Err(e) => {
+            return Ok(vec![Finding::new(
+                "evidence",
+                Status::Bad,
+                printable(&e.what),
+            )])
+        }
     };
     let mut found = signature::check(lock_path, &lock_bytes, signers.as_ref());
     found.extend(timestamp::check(lock_path, &lock_bytes, roots.as_ref()));
     Ok(found)
+}
+
+/// What kind of evidence an [`Evidence`] is.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum EvidenceKind {
+    /// An RFC 3161 timestamp token.
+    Timestamp,
+    /// An SSHSIG signature of the lock.
+    Signature,
+}
+
+/// One piece of sound evidence beside a lock, as a report lists it: what
+/// it covers, who vouches, when, and one honest sentence on what it shows
+/// and what it does not. Only evidence that checks out offline is listed
+/// (trust in the signer or authority is for `verify --signers/--tsa-roots`).
+#[derive(Clone, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub struct Evidence {
+    /// Timestamp or signature.
+    pub kind: EvidenceKind,
+    /// The evidence file's name, beside the lock.
+    pub file: String,
+    /// What it covers: "plan sha256 …", "data sha256 …" or "the lock file".
+    pub covers: String,
+    /// Who vouches: the authority's certificate subject, or the key.
+    pub by: String,
+    /// The authority's time (RFC 3339, UTC); none for a signature.
+    pub time: Option<String>,
+    /// What it shows and what it does not, in one sentence.
+    pub shows: String,
+}
+
+/// The sound evidence beside a lock, signature first, then tokens by kind
+/// and number. Deterministic: reads only the files, never the clock.
+pub fn evidence(lock_path: &Path) -> Vec<Evidence> {
+    let Ok(bytes) = read_bounded(lock_path, MAX_LOCK) else {
+        return Vec::new();
+    };
+    let mut out: Vec<Evidence> = signature::summary(lock_path, &bytes).into_iter().collect();
+    out.extend(timestamp::summary(lock_path, &bytes));
+    out
 }
 
 /// `attest sign FILE --key KEY`: signs an existing lock.
@@ -174,34 +221,25 @@ pub fn after_lock(lock_path: &Path, at: &AtLock) -> Result<String> {
     Ok(lines.join("\n"))
 }
 
-/// Fetches tokens over a data file's SHA-256 before `run --tsa`.
-pub fn before_run(analysis: &Path, urls: &[String]) -> Result<(String, Vec<timestamp::Fetched>)> {
+/// `run --tsa`: stamps the data file's SHA-256 beside the lock before the
+/// run, so the report lists the stamp. All or nothing, like `stamp`.
+pub fn stamp_data(analysis: &Path, urls: &[String]) -> Result<String> {
     let file = crate::plan::validate::load(analysis)?;
+    let lock_path = crate::lock::lock_path(analysis);
+    if lock_path.symlink_metadata().is_err() {
+        return Err(Failure::input(format!(
+            "{} has no lock to keep a data stamp beside",
+            analysis.display()
+        ))
+        .help(format!(
+            "lock the plan first with `attest lock {}`",
+            analysis.display()
+        )));
+    }
     let data = lock_dir(analysis).join(&file.plan.data.path);
     let bytes = std::fs::read(&data).map_err(|e| Failure::io("read the data file", &data, &e))?;
-    let hash = crate::plan::canonical::sha256_hex(&bytes);
-    let tokens = timestamp::fetch_all(urls, &hash)?;
-    Ok((hash, tokens))
-}
-
-/// Stores the data tokens after a run, if the run read the stamped data.
-pub fn after_run(
-    analysis: &Path,
-    stamped: &str,
-    run_hash: &str,
-    tokens: &[timestamp::Fetched],
-) -> Result<String> {
-    if stamped != run_hash {
-        return Err(
-            Failure::input("the data file changed while it was being stamped")
-                .help("run again; no stamp was stored"),
-        );
-    }
-    stored_lines(
-        &crate::lock::lock_path(analysis),
-        timestamp::Covers::Data,
-        tokens,
-    )
+    let tokens = timestamp::fetch_all(urls, &crate::plan::canonical::sha256_hex(&bytes))?;
+    stored_lines(&lock_path, timestamp::Covers::Data, &tokens)
 }
 
 fn stored_lines(

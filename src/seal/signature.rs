@@ -204,7 +204,10 @@ pub fn check(
             Some(_) => vec![Finding::new(
                 what,
                 Status::Bad,
-                format!("missing: {} does not exist", sig_path.display()),
+                format!(
+                    "missing: {} does not exist",
+                    printable(&sig_path.display().to_string())
+                ),
             )],
             None => Vec::new(),
         };
@@ -212,14 +215,14 @@ pub fn check(
     let bad = |text: String| vec![Finding::new(what, Status::Bad, text)];
     let bytes = match read_bounded(&sig_path, MAX_SIG) {
         Ok(b) => b,
-        Err(e) => return bad(e.what),
+        Err(e) => return bad(printable(&e.what)),
     };
     let sig = match SshSig::from_pem(&bytes) {
         Ok(s) => s,
         Err(e) => {
             return bad(format!(
                 "{} is not a readable SSH signature ({e})",
-                sig_path.display()
+                printable(&sig_path.display().to_string())
             ))
         }
     };
@@ -266,6 +269,26 @@ pub fn check(
             }
         }
     }
+}
+
+/// The lock's signature for a report, if it verifies.
+pub fn summary(lock_path: &Path, lock_bytes: &[u8]) -> Option<super::Evidence> {
+    let sig_path = signature_path(lock_path);
+    let bytes = read_bounded(&sig_path, MAX_SIG).ok()?;
+    let sig = SshSig::from_pem(&bytes).ok()?;
+    let key = PublicKey::from(sig.public_key().clone());
+    key.verify(NAMESPACE, lock_bytes, &sig).ok()?;
+    let by = describe(&key);
+    Some(super::Evidence {
+        kind: super::EvidenceKind::Signature,
+        file: crate::lock::file_name(&sig_path),
+        covers: "the lock file".into(),
+        shows: format!(
+            "The holder of the {by} signed this lock file; this does not show when it was signed."
+        ),
+        by,
+        time: None,
+    })
 }
 
 /// One line of an allowed-signers file.

@@ -703,8 +703,10 @@ fn hex_bytes(h: &str) -> Option<Vec<u8>> {
         .collect()
 }
 
-fn short(h: &str) -> &str {
-    &h[..h.len().min(12)]
+/// The first 12 characters of a hash, safe for any text (a hostile lock
+/// may hold anything where a hash belongs).
+fn short(h: &str) -> String {
+    printable(&h.chars().take(12).collect::<String>())
 }
 
 /// How long `secs` is, roughly, in words.
@@ -736,8 +738,8 @@ pub fn check(lock_path: &Path, lock_bytes: &[u8], roots: Option<&Roots>) -> Vec<
                 Status::Bad,
                 format!(
                     "missing: no timestamp token beside {} (expected {})",
-                    lock_path.display(),
-                    token_path(lock_path, Covers::Plan, 1).display()
+                    printable(&lock_path.display().to_string()),
+                    printable(&token_path(lock_path, Covers::Plan, 1).display().to_string())
                 ),
             ));
         }
@@ -776,7 +778,7 @@ pub fn check(lock_path: &Path, lock_bytes: &[u8], roots: Option<&Roots>) -> Vec<
                     format!(
                         ", {} before the lock's own time {}: the lock's time is not what the authority saw",
                         span(l - t),
-                        lock.locked_at
+                        printable(&lock.locked_at)
                     ),
                 ),
                 (Some(t), Some(l)) if t < l => {
@@ -787,6 +789,51 @@ pub fn check(lock_path: &Path, lock_bytes: &[u8], roots: Option<&Roots>) -> Vec<
             };
             let text = format!("{seen}{relation}{anchor}");
             out.push(Finding::new(what, status, text));
+        }
+    }
+    out
+}
+
+/// The sound tokens beside a lock for a report (checked as `verify` does
+/// without roots; a token that fails is left to `verify` to report).
+pub fn summary(lock_path: &Path, lock_bytes: &[u8]) -> Vec<super::Evidence> {
+    let mut out = Vec::new();
+    let Ok(lock) = serde_json::from_slice::<crate::lock::LockFile>(lock_bytes) else {
+        return out;
+    };
+    let data = data_hash(lock_path, &lock);
+    for covers in [Covers::Plan, Covers::Data] {
+        let expected = match covers {
+            Covers::Plan => Some(lock.plan_sha256.clone()),
+            Covers::Data => data.clone(),
+        };
+        for (_, path) in token_files(lock_path, covers).into_iter().take(MAX_TOKENS) {
+            let Some(der) = read_bounded(&path, MAX_TOKEN).ok() else {
+                continue;
+            };
+            let Ok(p) = parse(&der) else { continue };
+            if one(&path, covers, expected.as_deref(), None).0 == Status::Bad {
+                continue;
+            }
+            let Ok(cert) = p.signer_cert() else { continue };
+            let by = cert.tbs_certificate.subject.to_string();
+            let time = crate::lock::rfc3339_utc(p.gen_time());
+            let hash = expected.clone().unwrap_or_default();
+            let not = match covers {
+                Covers::Plan => "not that the plan was written before the data were seen",
+                Covers::Data => "not that the data did not exist, or were not seen, earlier",
+            };
+            out.push(super::Evidence {
+                kind: super::EvidenceKind::Timestamp,
+                file: crate::lock::file_name(&path),
+                covers: format!("{} sha256 {hash}", covers.word()),
+                shows: format!(
+                    "The time-stamping authority {by} saw this {} hash by {time}; this shows it existed by then, {not}.",
+                    covers.word()
+                ),
+                by,
+                time: Some(time),
+            });
         }
     }
     out
@@ -819,7 +866,7 @@ fn one(
         .unwrap_or_default();
     let der = match read_bounded(path, MAX_TOKEN) {
         Ok(d) => d,
-        Err(e) => return bad(e.what),
+        Err(e) => return bad(printable(&e.what)),
     };
     let p = match parse(&der) {
         Ok(p) => p,
