@@ -17,9 +17,22 @@ const MAX_RESPONSE: u64 = 1 << 20;
 /// How long one request may take, connection included.
 const TIMEOUT: Duration = Duration::from_secs(30);
 
+/// An authority's address as attest prints it: without a user name,
+/// password, query or fragment, which may hold an access token, and with
+/// terminal controls escaped.
+pub fn shown(url: &str) -> String {
+    let (scheme, rest) = url.split_once("://").unwrap_or(("", url));
+    let rest = rest.split(['?', '#']).next().unwrap_or("");
+    let (host, path) = rest.split_once('/').unwrap_or((rest, ""));
+    let host = host.rsplit_once('@').map_or(host, |(_, h)| h);
+    let sep = if scheme.is_empty() { "" } else { "://" };
+    let slash = if rest.contains('/') { "/" } else { "" };
+    super::printable(&format!("{scheme}{sep}{host}{slash}{path}"))
+}
+
 /// Posts an RFC 3161 query and returns the body of a 200 response.
 pub fn post_query(url: &str, query: &[u8]) -> Result<Vec<u8>> {
-    let shown = super::printable(url);
+    let shown = shown(url);
     let rest = if let Some(r) = url.strip_prefix("http://") {
         r
     } else if url.starts_with("https://") {

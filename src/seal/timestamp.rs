@@ -146,7 +146,7 @@ pub fn fetch_all(urls: &[String], hash_hex: &str) -> Result<Vec<Fetched>> {
 }
 
 fn fetch(url: &str, hash: &[u8]) -> Result<Fetched> {
-    let shown = printable(url);
+    let shown = super::http::shown(url);
     let mut nonce = [0u8; 16];
     getrandom::getrandom(&mut nonce)
         .map_err(|e| Failure::internal(format!("cannot draw a random nonce: {e}")))?;
