@@ -207,8 +207,9 @@ fn dispatch(cli: Cli) -> Result<i32> {
             signers,
             tsa_roots,
         } => {
-            let mut v = crate::verify::verify(&report, plan.as_deref(), templates.as_deref())?;
             let trust = crate::seal::Options { signers, tsa_roots };
+            trust.read()?;
+            let mut v = crate::verify::verify(&report, plan.as_deref(), templates.as_deref())?;
             let lock = crate::lock::lock_path(&v.analysis);
             for f in crate::seal::check_all(&lock, &trust)? {
                 use crate::seal::Status;

@@ -68,6 +68,19 @@ pub struct Options {
     pub tsa_roots: Option<PathBuf>,
 }
 
+impl Options {
+    /// Reads the files named, so a wrong one fails before any other work.
+    pub fn read(&self) -> Result<()> {
+        if let Some(p) = &self.signers {
+            signature::AllowedSigners::read(p)?;
+        }
+        if let Some(p) = &self.tsa_roots {
+            timestamp::Roots::read(p)?;
+        }
+        Ok(())
+    }
+}
+
 /// Checks every piece of evidence beside a lock, offline. Fails only when
 /// a file the user named (signers, roots) cannot be used; everything found
 /// beside the lock is reported as findings, never as a failure.
@@ -248,7 +261,7 @@ fn stored_lines(
     tokens: &[timestamp::Fetched],
 ) -> Result<String> {
     let paths = timestamp::store(lock_path, covers, tokens)?;
-    Ok(paths
+    let mut lines: Vec<String> = paths
         .iter()
         .zip(tokens)
         .map(|(p, t)| {
@@ -259,12 +272,20 @@ fn stored_lines(
                 t.gen_time
             )
         })
-        .collect::<Vec<_>>()
-        .join("\n"))
+        .collect();
+    lines.push(match covers {
+        timestamp::Covers::Plan => "  a stamp shows the authority saw the plan's hash by that time, not that the plan was written before the data were seen",
+        timestamp::Covers::Data => "  a stamp shows the authority saw the data's hash by that time, not that they did not exist earlier",
+    }.to_string());
+    Ok(lines.join("\n"))
 }
 
 fn signed_line(sig: &Path, key: &signature::Key) -> String {
-    format!("signed: {} with {}", sig.display(), key.describe())
+    format!(
+        "signed: {} with {}\n  a signature shows the key holder signed this lock, not when",
+        sig.display(),
+        key.describe()
+    )
 }
 
 /// A lock named directly, or the lock of an analysis file.
