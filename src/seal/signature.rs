@@ -326,9 +326,11 @@ impl AllowedSigners {
             if t.is_empty() || t.starts_with('#') {
                 continue;
             }
-            let col = line.len() - line.trim_start().len() + 1;
+            let lead = line.len() - line.trim_start().len();
             entries.push(parse_entry(t).map_err(|(what, off)| {
-                Failure::input(what).at(path, i + 1, Some(col + off)).help(
+                // Columns count characters, as everywhere in attest.
+                let col = line[..(lead + off).min(line.len())].chars().count() + 1;
+                Failure::input(what).at(path, i + 1, Some(col)).help(
                     "each line reads `PRINCIPALS [OPTIONS] KEYTYPE BASE64-KEY`, e.g. `alice@example.org ssh-ed25519 AAAA…` (ssh-keygen(1), ALLOWED SIGNERS)",
                 )
             })?);

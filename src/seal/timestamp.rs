@@ -731,7 +731,7 @@ pub fn check(lock_path: &Path, lock_bytes: &[u8], roots: Option<&Roots>) -> Vec<
     let locked_at = parse_rfc3339(&lock.locked_at);
     let plans = token_files(lock_path, Covers::Plan);
     let datas = token_files(lock_path, Covers::Data);
-    if plans.is_empty() && datas.is_empty() {
+    if plans.is_empty() {
         if roots.is_some() {
             out.push(Finding::new(
                 "plan stamp",
@@ -743,7 +743,9 @@ pub fn check(lock_path: &Path, lock_bytes: &[u8], roots: Option<&Roots>) -> Vec<
                 ),
             ));
         }
-        return out;
+        if datas.is_empty() {
+            return out;
+        }
     }
     let data_hash = data_hash(lock_path, &lock);
     let mut first_plan_time: Option<i64> = None;
