@@ -445,3 +445,38 @@ fn sign_never_overwrites_a_signature() {
     );
     assert!(ok, "{text}");
 }
+
+/// Every single-character change of a sound signature file: never a panic,
+/// and never a signature that passes for anything but what was signed.
+#[test]
+fn no_single_character_change_of_a_signature_passes() {
+    if !have_ssh_keygen() {
+        return;
+    }
+    use attest::seal::{check_all, Options, Status};
+    let c = case("sleep");
+    keygen(&c, "ed25519", "alice");
+    c.attest(&["lock", "sleep.toml", "--sign", "alice"])
+        .success();
+    allow(&c, "allowed", &[("alice@example.org", "alice")]);
+    let options = Options {
+        signers: Some(c.path().join("allowed")),
+        tsa_roots: None,
+    };
+    let lock = c.path().join("sleep.lock");
+    let sig_path = c.path().join("sleep.lock.sig");
+    let good = std::fs::read(&sig_path).unwrap();
+    let sound = check_all(&lock, &options).unwrap();
+    assert_eq!(sound[0].status, Status::Good, "{sound:?}");
+    for i in 0..good.len() {
+        let mut s = good.clone();
+        s[i] = if s[i] == b'A' { b'B' } else { b'A' };
+        std::fs::write(&sig_path, &s).unwrap();
+        let found = check_all(&lock, &options).unwrap();
+        assert_eq!(found.len(), 1, "byte {i}");
+        assert!(
+            found[0].status == Status::Bad || found == sound,
+            "byte {i}: {found:?}"
+        );
+    }
+}

@@ -751,6 +751,18 @@ fn no_authority_no_change() {
         "changed: missing: no timestamp token beside sleep.lock (expected sleep.plan-stamp-1.tst)"
     );
 
+    // Data stamps alone do not stand in for the missing plan stamp.
+    c.attest(&["run", "--quiet", "sleep.toml", "--tsa", &good.url])
+        .success();
+    let a = c
+        .attest(&["verify", "out/sleep", "--tsa-roots", &pki.file("ca.pem")])
+        .code(2);
+    assert_eq!(
+        line(&stdout(&a), "plan stamp"),
+        "changed: missing: no timestamp token beside sleep.lock (expected sleep.plan-stamp-1.tst)"
+    );
+    assert!(line(&stdout(&a), "data stamp 1").starts_with("data sha256 "));
+
     // `lock --tsa` with an unreachable authority writes no lock.
     let fresh = case("sleep");
     fresh
@@ -758,4 +770,45 @@ fn no_authority_no_change() {
         .code(1);
     assert!(!fresh.exists("sleep.lock"));
     assert!(!fresh.exists("out"));
+}
+
+/// Every single-byte change of a sound token, read offline from a hostile
+/// folder: never a panic, and each one is either refused (a `Bad` line) or
+/// changes a part of the token that nothing rests on, leaving the same
+/// sentence as the sound token.
+#[test]
+fn no_single_byte_change_of_a_token_panics_or_passes_as_another() {
+    if !have_openssl() {
+        return;
+    }
+    use attest::seal::{check_all, Options, Status};
+    let pki = Pki::new();
+    let c = case("sleep");
+    c.attest(&["lock", "sleep.toml"]).success();
+    let good = pki.token("tsa.pem", &plan_hash(&c));
+    let lock = c.path().join("sleep.lock");
+    let token = c.path().join("sleep.plan-stamp-1.tst");
+    let options = Options {
+        signers: None,
+        tsa_roots: Some(pki.path().join("ca.pem")),
+    };
+    std::fs::write(&token, &good).unwrap();
+    let sound = check_all(&lock, &options).unwrap();
+    assert_eq!(sound.len(), 1);
+    assert_eq!(sound[0].status, Status::Good, "{sound:?}");
+    let mut refused = 0;
+    for i in 0..good.len() {
+        let mut t = good.clone();
+        t[i] ^= 0x01;
+        std::fs::write(&token, &t).unwrap();
+        let found = check_all(&lock, &options).unwrap();
+        assert_eq!(found.len(), 1, "byte {i}");
+        if found[0].status == Status::Bad {
+            refused += 1;
+        } else {
+            assert_eq!(found, sound, "byte {i} changed what the token says");
+        }
+    }
+    // Nearly every byte is signed or names what was signed.
+    assert!(refused * 10 > good.len() * 9, "{refused} of {}", good.len());
 }
