@@ -195,9 +195,20 @@ pub fn verify(
     // outputs as of the recorded witness and report the current one.
     if let (Some(now), Some(then)) = (fresh.lock_record.as_mut(), recorded.lock_record.as_ref()) {
         let current = std::mem::replace(&mut now.witness, then.witness.clone());
-        // Evidence added beside the lock after the run is checked below
-        // (seal::check_all), not a change of the report.
-        now.evidence = then.evidence.clone();
+        // Evidence added beside the lock after the run is not a change of
+        // the report (the cli checks it all with seal::check_all), but
+        // every piece the report lists must still be there and sound.
+        let present = std::mem::replace(&mut now.evidence, then.evidence.clone());
+        for e in then.evidence.iter().filter(|e| !present.contains(e)) {
+            items.push(Item::changed(
+                "evidence",
+                format!(
+                    "the report lists {}, which is not sound evidence beside the lock",
+                    crate::seal::printable(&e.file)
+                ),
+                true,
+            ));
+        }
         items.push(Item::note("lock in git", describe_witness(&current)));
     }
     let outputs = pipeline::render_outputs(&fresh, templates)?;

@@ -812,3 +812,28 @@ fn no_single_byte_change_of_a_token_panics_or_passes_as_another() {
     // Nearly every byte is signed or names what was signed.
     assert!(refused * 10 > good.len() * 9, "{refused} of {}", good.len());
 }
+
+/// A report that lists a stamp which is not beside the lock does not
+/// verify: the evidence a report claims is checked, not copied.
+#[test]
+fn a_report_cannot_claim_a_stamp_it_does_not_have() {
+    let c = case("sleep");
+    c.attest(&["lock", "sleep.toml"]).success();
+    c.attest(&["run", "--quiet", "sleep.toml"]).success();
+    let mut results: serde_json::Value =
+        serde_json::from_str(&c.read("out/sleep/results.json")).unwrap();
+    results["lock_record"]["evidence"] = serde_json::json!([{
+        "kind": "timestamp",
+        "file": "sleep.plan-stamp-1.tst",
+        "covers": "plan sha256 0",
+        "by": "CN=Nobody",
+        "time": "2020-01-01T00:00:00Z",
+        "shows": "The time-stamping authority CN=Nobody saw this plan hash by 2020-01-01T00:00:00Z."
+    }]);
+    c.write("out/sleep/results.json", &results.to_string());
+    let a = c.attest(&["verify", "out/sleep"]).code(2);
+    assert_eq!(
+        line(&stdout(&a), "evidence"),
+        "changed: the report lists sleep.plan-stamp-1.tst, which is not sound evidence beside the lock"
+    );
+}
