@@ -16,6 +16,7 @@ pub(crate) mod pipeline;
 pub mod plan;
 pub mod render;
 pub mod results;
+pub mod seal;
 pub(crate) mod starter;
 pub mod stats;
 pub(crate) mod verify;

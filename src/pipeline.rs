@@ -166,6 +166,7 @@ fn lock_state(
             &lock.locked_at,
             &plan_dir(&file.path).join(&file.plan.data.path),
         ),
+        evidence: crate::seal::evidence(&lock_path),
     };
     let changes = diff(&lock.plan_value(), &canonical_value(&file.plan));
     let state = if changes.is_empty() && record.intact {

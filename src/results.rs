@@ -83,6 +83,10 @@ pub struct LockRecord {
     /// What version control says: the first commit holding the lock, or
     /// that it is not committed, or that there is no git here.
     pub witness: crate::witness::Witness,
+    /// Signatures and timestamp tokens beside the lock at the run (none:
+    /// the field is left out).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub evidence: Vec<crate::seal::Evidence>,
 }
 
 /// The data file as read.

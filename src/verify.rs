@@ -334,6 +334,22 @@ pub fn verify(
             Some(then) => std::mem::replace(&mut now.witness, then),
             None => now.witness.clone(),
         };
+        // Evidence added beside the lock after the run is not a change of
+        // the report (the cli checks it all with seal::check_all), but
+        // every piece the report lists must still be there and sound.
+        if let Some(then) = recorded.lock_record.as_ref() {
+            let present = std::mem::replace(&mut now.evidence, then.evidence.clone());
+            for e in then.evidence.iter().filter(|e| !present.contains(e)) {
+                items.push(Item::changed(
+                    "evidence",
+                    format!(
+                        "the report lists {}, which is not sound evidence beside the lock",
+                        crate::seal::printable(&e.file)
+                    ),
+                    true,
+                ));
+            }
+        }
         let then = recorded.lock_record.as_ref().map(|r| &r.witness);
         let lock_edited = items
             .iter()

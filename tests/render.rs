@@ -389,6 +389,7 @@ fn scenario() -> Results {
             data_sha256: None,
             intact: true,
             witness: attest::witness::Witness::NoGit,
+            evidence: vec![],
         }),
         changes: vec![],
         deviations: vec![],

@@ -48,6 +48,31 @@ pub(crate) enum Command {
         /// Write into an output folder that holds files attest did not write.
         #[arg(long)]
         force: bool,
+        /// Also sign the lock with this SSH private key (see `attest sign`).
+        #[arg(long, value_name = "KEY")]
+        sign: Option<PathBuf>,
+        /// Also have this time-stamping authority stamp the plan (see
+        /// `attest stamp`); repeat for several.
+        #[arg(long, value_name = "URL")]
+        tsa: Vec<String>,
+    },
+    /// Sign a lock with an SSH private key: writes `<stem>.lock.sig`
+    /// (SSHSIG, namespace attest-lock) beside it. Never overwrites.
+    Sign {
+        /// The lock (or its analysis file).
+        file: PathBuf,
+        /// Your SSH private key (OpenSSH format), e.g. ~/.ssh/id_ed25519.
+        #[arg(long, value_name = "KEY")]
+        key: PathBuf,
+    },
+    /// Have time-stamping authorities (RFC 3161) stamp a lock's plan hash:
+    /// writes `<stem>.plan-stamp-N.tst` beside it; the lock is unchanged.
+    Stamp {
+        /// The lock (or its analysis file).
+        file: PathBuf,
+        /// The authority's http:// address; repeat for several.
+        #[arg(long, value_name = "URL", required = true)]
+        tsa: Vec<String>,
     },
     /// Run locked plans against their data and write the reports. Takes
     /// analysis files or folders (every *.toml inside, in path order);
@@ -79,6 +104,10 @@ pub(crate) enum Command {
         /// Print the summary as JSON instead of lines.
         #[arg(long, conflicts_with = "quiet")]
         json: bool,
+        /// Have this time-stamping authority stamp the data's SHA-256
+        /// beside the lock (one analysis); repeat for several.
+        #[arg(long, value_name = "URL", conflicts_with_all = ["unlocked", "expect_same"])]
+        tsa: Vec<String>,
     },
     /// Plan a sample size: give two of --effect, --power and --n, and the
     /// third is solved for with the exact noncentral t distribution.
@@ -147,6 +176,14 @@ pub(crate) enum Command {
         /// Templates the report was rendered with, if not the built-in ones.
         #[arg(long, value_name = "DIR")]
         templates: Option<PathBuf>,
+        /// Check the lock's signature against this allowed-signers file
+        /// (OpenSSH format).
+        #[arg(long, value_name = "FILE")]
+        signers: Option<PathBuf>,
+        /// Check the lock's timestamp tokens against these trusted root
+        /// certificates (PEM).
+        #[arg(long, value_name = "FILE")]
+        tsa_roots: Option<PathBuf>,
     },
 }
 

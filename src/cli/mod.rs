@@ -126,10 +126,18 @@ fn dispatch(cli: Cli) -> Result<i32> {
             out,
             templates,
             force,
+            sign,
+            tsa,
         } => {
+            let at = crate::seal::before_lock(&file, sign.as_deref(), &tsa)?;
             let o = pipeline::lock(&file, out.as_deref(), templates.as_deref(), force)?;
             say(&terminal::locked(&o))?;
+            if sign.is_some() || !tsa.is_empty() {
+                say(&crate::seal::after_lock(&o.lock_path, &at)?)?;
+            }
         }
+        Command::Sign { file, key } => say(&crate::seal::sign_command(&file, &key)?)?,
+        Command::Stamp { file, tsa } => say(&crate::seal::stamp_command(&file, &tsa)?)?,
         Command::Run {
             paths,
             out,
@@ -139,6 +147,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
             expect_same,
             quiet,
             json,
+            tsa,
         } => {
             let files = pipeline::expand(&paths)?;
             if json && (files.len() > 1 || expect_same) {
@@ -157,7 +166,14 @@ fn dispatch(cli: Cli) -> Result<i32> {
                 templates,
                 force,
             };
+            if !tsa.is_empty() && files.len() > 1 {
+                return Err(Failure::input("--tsa stamps the data of one analysis")
+                    .help("run one analysis file with --tsa"));
+            }
             if files.len() == 1 && !expect_same {
+                if !tsa.is_empty() {
+                    eprintln!("{}", crate::seal::stamp_data(&files[0], &tsa)?);
+                }
                 let o = pipeline::run(&files[0], &opts)?;
                 for line in terminal::lock_warnings(&o.results) {
                     warn(&line);
@@ -229,8 +245,28 @@ fn dispatch(cli: Cli) -> Result<i32> {
             report,
             plan,
             templates,
+            signers,
+            tsa_roots,
         } => {
-            let v = crate::verify::verify(&report, plan.as_deref(), templates.as_deref())?;
+            let trust = crate::seal::Options { signers, tsa_roots };
+            trust.read()?;
+            let mut v = crate::verify::verify(&report, plan.as_deref(), templates.as_deref())?;
+            let lock = crate::lock::lock_path(&v.analysis);
+            for f in crate::seal::check_all(&lock, &trust)? {
+                use crate::seal::Status;
+                let bad = f.status == Status::Bad;
+                v.items.push(crate::verify::Item {
+                    what: f.what,
+                    outcome: if bad {
+                        crate::verify::Outcome::Changed {
+                            how: f.text,
+                            fatal: true,
+                        }
+                    } else {
+                        crate::verify::Outcome::Note(f.text)
+                    },
+                });
+            }
             say(&terminal::verification(&v))?;
             return Ok(v.exit_code());
         }

@@ -600,6 +600,9 @@ fn provenance(r: &Results) -> Vec<Value> {
                 escape(&l.locked_at),
                 escape(&l.locked_with)
             )));
+            for e in &l.evidence {
+                out.push(md(format!("{}: {}", escape(&e.file), escape(&e.shows))));
+            }
         }
         None => out.push(md("Lock: none")),
     }
