@@ -6,6 +6,7 @@
 //! turn that into words. One module per family keeps each published
 //! algorithm next to its citation and its tests.
 
+pub mod brunner_munzel;
 pub mod describe;
 pub mod dist;
 pub mod effect;
