@@ -33,7 +33,8 @@
 //! p-values should never be zero", Stat. Appl. Genet. Mol. Biol. 9(1)).
 //! A split with zero variance gets t = ±∞ by the sign of θ̂ − ½ (0 at
 //! θ̂ = ½), so extreme splits count as the most extreme. "At least as
-//! extreme" is t* ≥ t (greater), t* ≤ t (less), |t*| ≥ |t| (two-sided).
+//! extreme" is t* ≥ t (greater), t* ≤ t (less), |t*| ≥ |t| (two-sided),
+//! each with a relative slack of 1e-9 for rounding.
 //! Each split costs one O(N) walk over the pooled order, since pooled
 //! ranks do not change under reassignment.
 
@@ -259,10 +260,14 @@ pub fn brunner_munzel_permutation(
         studentised(theta, a, b, n1, n2)
     };
     let observed = stat(&first);
+    // Splits whose statistic equals the observed one in exact arithmetic
+    // can differ from it by rounding; a relative slack of 1e-9 counts them
+    // as equal (common practice).
+    let slack = 1e-9 * observed.abs().min(f64::MAX);
     let extreme = |t: f64| match alt {
-        Alternative::Greater => t >= observed,
-        Alternative::Less => t <= observed,
-        Alternative::TwoSided => t.abs() >= observed.abs(),
+        Alternative::Greater => t >= observed - slack,
+        Alternative::Less => t <= observed + slack,
+        Alternative::TwoSided => t.abs() >= observed.abs() - slack,
     };
     let n = n1 + n2;
     let splits = binomial_at_most(n, n1, permutations);

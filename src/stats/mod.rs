@@ -23,6 +23,7 @@ pub mod ranks;
 pub mod spread;
 pub mod ttest;
 pub mod wilcoxon;
+pub mod yuen;
 
 use serde::{Deserialize, Serialize};
 
