@@ -3,9 +3,13 @@
 //! inputs in tests/reference/robust.json): scipy.stats.brunnermunzel,
 //! statsmodels rank_compare_2indep (interval for θ), permutation p by
 //! enumerating every split with scipy's statistic, scipy.stats.ttest_ind
-//! with trim, and scipy's trim_mean/winsorize for the one-sample form.
+//! with trim, scipy's trim_mean/winsorize for the one-sample form,
+//! statsmodels tost_prob_superior and scipy's exact mannwhitneyu on
+//! shifted data for the two equivalence tests.
 
 use attest::stats::brunner_munzel::{brunner_munzel, brunner_munzel_permutation, BmInference};
+use attest::stats::equivalence_rank::{tost_hodges_lehmann, tost_prob_superiority};
+use attest::stats::rank_tests::RankOptions;
 use attest::stats::yuen::{normal_winsorised_sd, trimmed_t_one_sample, yuen};
 use attest::stats::Alternative;
 use serde_json::Value;
@@ -185,4 +189,67 @@ fn winsorised_constant_matches_numerical_integration() {
     // scipy.stats.norm.expect (numerical quadrature) in the generator.
     let want = f(&load()["normal_winsorised_sd_0.2"]);
     close(normal_winsorised_sd(0.2), want, 1e-10, "c(0.2)");
+}
+
+#[test]
+fn superiority_tost_matches_statsmodels() {
+    let doc = load();
+    let cases = doc["tost_prob_superiority"].as_array().unwrap();
+    assert!(cases.len() >= 4);
+    for c in cases {
+        let name = c["name"].to_string();
+        let t = tost_prob_superiority(
+            &vec(&c["x"]),
+            &vec(&c["y"]),
+            f(&c["low"]),
+            f(&c["high"]),
+            0.05,
+        )
+        .unwrap_or_else(|e| panic!("{name}: {e}"));
+        close(
+            t.p_lower,
+            f(&c["p_lower"]),
+            1e-9,
+            &format!("p lower {name}"),
+        );
+        close(
+            t.p_upper,
+            f(&c["p_upper"]),
+            1e-9,
+            &format!("p upper {name}"),
+        );
+        close(t.p, f(&c["p"]), 1e-9, &format!("p {name}"));
+    }
+}
+
+#[test]
+fn shift_tost_matches_scipy_exact() {
+    let doc = load();
+    let cases = doc["tost_hodges_lehmann"].as_array().unwrap();
+    assert!(cases.len() >= 3);
+    for c in cases {
+        let name = c["name"].to_string();
+        let t = tost_hodges_lehmann(
+            &vec(&c["x"]),
+            &vec(&c["y"]),
+            f(&c["low"]),
+            f(&c["high"]),
+            0.05,
+            &RankOptions::default(),
+        )
+        .unwrap_or_else(|e| panic!("{name}: {e}"));
+        close(
+            t.p_lower,
+            f(&c["p_lower"]),
+            1e-10,
+            &format!("p lower {name}"),
+        );
+        close(
+            t.p_upper,
+            f(&c["p_upper"]),
+            1e-10,
+            &format!("p upper {name}"),
+        );
+        close(t.p, f(&c["p"]), 1e-10, &format!("p {name}"));
+    }
 }

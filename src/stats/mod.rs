@@ -11,6 +11,7 @@ pub mod describe;
 pub mod dist;
 pub mod effect;
 pub mod equivalence;
+pub mod equivalence_rank;
 pub mod hodges_lehmann;
 pub mod mann_whitney;
 pub mod multiplicity;

@@ -24,6 +24,10 @@ the JSON.
 * One-sample / paired trimmed t (Tukey & McLaughlin 1963):
   scipy.stats.trim_mean and scipy.stats.mstats.winsorize, assembled by
   hand here: se^2 = (n-1) s_w^2 / (h (h-1)), df = h - 1.
+* Equivalence on the probability of superiority (Munzel & Hauschke 2003):
+  statsmodels rank_compare_2indep(x, y).tost_prob_superior(low, upp).
+* Equivalence on the Hodges-Lehmann shift: scipy.stats.mannwhitneyu
+  (method='exact', untied data) on x - low (greater) and x - high (less).
 * The robust effect d_R of Algina, Keselman & Penfield (2005) with its
   constant c = winsorised SD of the standard normal, from scipy.stats.norm.
 """
@@ -198,6 +202,39 @@ def one_sample_case(name, x, mu, g):
     return out
 
 
+def tost_ps_case(name, x, y, low, high):
+    rc = rank_compare_2indep(np.asarray(x, float), np.asarray(y, float))
+    t = rc.tost_prob_superior(low, high)
+    return {
+        "name": name,
+        "x": fl(x),
+        "y": fl(y),
+        "low": low,
+        "high": high,
+        "p": float(t.pvalue),
+        "p_lower": float(t.results_larger.pvalue),
+        "p_upper": float(t.results_smaller.pvalue),
+    }
+
+
+def tost_hl_case(name, x, y, low, high):
+    xa = np.asarray(x, float)
+    pl = stats.mannwhitneyu(xa - low, y, alternative="greater", method="exact").pvalue
+    pu = stats.mannwhitneyu(xa - high, y, alternative="less", method="exact").pvalue
+    assert len(set(list(xa - low) + list(y))) == len(x) + len(y)
+    assert len(set(list(xa - high) + list(y))) == len(x) + len(y)
+    return {
+        "name": name,
+        "x": fl(x),
+        "y": fl(y),
+        "low": low,
+        "high": high,
+        "p_lower": float(pl),
+        "p_upper": float(pu),
+        "p": float(max(pl, pu)),
+    }
+
+
 def main():
     bm = []
     fixed = [
@@ -226,6 +263,18 @@ def main():
         one += one_sample_case(f"paired_diffs_g{g}", d, 0.0, g)
     one += one_sample_case("reference_value", [12.0, 15.5, 9.0, 14.0, 13.5, 60.0, 11.0, 12.5], 10.0, 0.2)
 
+    eq_ps = []
+    for i, (lo, hi) in enumerate([(0.3, 0.7), (0.4, 0.6), (0.2, 0.9)]):
+        x = list(rng.normal(0.1 * i, 1.0, 25).round(2))
+        y = list(rng.normal(0.0, 1.0 + 0.5 * i, 30).round(2))
+        eq_ps.append(tost_ps_case(f"ps_{i}", x, y, lo, hi))
+    eq_ps.append(tost_ps_case("ps_likert", [3, 4, 4, 5, 2, 4, 3, 3], [2, 3, 3, 4, 3, 4, 5], 0.25, 0.75))
+    eq_hl = []
+    for i, (lo, hi) in enumerate([(-1.0, 1.0), (-0.3, 0.3), (-2.0, 0.5)]):
+        x = list((rng.normal(0.0, 1.0, 9 + i)).round(4) + 0.00005)
+        y = list((rng.normal(0.1, 1.0, 11)).round(4))
+        eq_hl.append(tost_hl_case(f"hl_{i}", x, y, lo, hi))
+
     doc = {
         "scipy_version": scipy.__version__,
         "statsmodels_version": statsmodels.__version__,
@@ -234,6 +283,8 @@ def main():
         "brunner_munzel": bm,
         "yuen": yu,
         "trimmed_one_sample": one,
+        "tost_prob_superiority": eq_ps,
+        "tost_hodges_lehmann": eq_hl,
     }
     with open(OUT, "w") as f:
         json.dump(doc, f, indent=1)
