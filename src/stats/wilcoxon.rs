@@ -14,26 +14,8 @@ use super::rank_tests::{
     check_level, exact_p, fisher_interval, normal_critical_k, normal_log10_p, normal_p,
     order_interval, tail_alpha, RankOptions, RankTest, ZeroRule,
 };
-use super::ranks::{for_each_tie_group, midrank, tie_term};
+use super::ranks::{for_each_tie_group, tie_term};
 use super::{ensure_finite, Alternative, RankPMethod, StatsError};
-
-/// W+ (sum of the midranks of |d| over positive d), the number of
-/// non-zero differences and the tie term Σ(t³ − t) of their |d|.
-pub fn signed_rank_sum(d: &[f64]) -> (f64, usize, f64) {
-    let mut a: Vec<(f64, bool)> = d
-        .iter()
-        .filter(|&&v| v != 0.0)
-        .map(|&v| (v.abs(), v > 0.0))
-        .collect();
-    a.sort_unstable_by(|p, q| p.0.total_cmp(&q.0));
-    let (mut w_plus, mut ties) = (0.0, 0.0);
-    for_each_tie_group(a.iter().map(|p| p.0), |start, len| {
-        let pos = a[start..start + len].iter().filter(|p| p.1).count();
-        w_plus += pos as f64 * midrank(start, len);
-        ties += tie_term(len);
-    });
-    (w_plus, a.len(), ties)
-}
 
 /// Doubled midranks of the non-zero |d| (ranked among the zeros too when
 /// `rule` keeps them), with each one's sign (true = positive), the
@@ -213,8 +195,14 @@ mod tests {
     fn hand_worked_signed_ranks() {
         // |d| = 1, 2, 2, 4 → ranks 1, 2.5, 2.5, 4; positives 1, −2(no), 2, 4
         // → W+ = 1 + 2.5 + 4 = 7.5; one tie pair → 6; one zero dropped.
-        let (w, n, t) = signed_rank_sum(&[1.0, -2.0, 0.0, 2.0, 4.0]);
-        assert_eq!((w, n, t), (7.5, 4, 6.0));
+        let (scores, zeros, t) = signed_scores(&[1.0, -2.0, 0.0, 2.0, 4.0], ZeroRule::Drop);
+        let w2: u64 = scores.iter().filter(|p| p.1).map(|p| p.0).sum();
+        assert_eq!((w2, scores.len(), zeros, t), (15, 4, 1, 6.0));
+        // Pratt: the zero takes rank 1, so |d| = 1, 2, 2, 4 rank 2, 3.5,
+        // 3.5, 5 → 2·W+ = 4 + 7 + 10 = 21.
+        let (scores, _, _) = signed_scores(&[1.0, -2.0, 0.0, 2.0, 4.0], ZeroRule::KeepInRanking);
+        let w2: u64 = scores.iter().filter(|p| p.1).map(|p| p.0).sum();
+        assert_eq!((w2, scores.len()), (21, 4));
     }
 
     #[test]
