@@ -253,3 +253,24 @@ fn shift_tost_matches_scipy_exact() {
         close(t.p, f(&c["p"]), 1e-10, &format!("p {name}"));
     }
 }
+
+#[test]
+fn pratt_normal_approximation_matches_scipy() {
+    use attest::stats::rank_tests::ZeroRule;
+    use attest::stats::wilcoxon::wilcoxon_signed_rank_with;
+    let doc = load();
+    let cases = doc["wilcoxon_pratt_normal"].as_array().unwrap();
+    assert!(cases.len() >= 12);
+    // The normal approximation, as scipy computes it (no exact count).
+    let options = RankOptions {
+        zeros: ZeroRule::KeepInRanking,
+        exact_max_cells: 0,
+        ..RankOptions::default()
+    };
+    for c in cases {
+        let name = format!("{} {}", c["name"], c["alternative"]);
+        let t = wilcoxon_signed_rank_with(&vec(&c["d"]), alt(&c["alternative"]), 0.95, &options)
+            .unwrap_or_else(|e| panic!("{name}: {e}"));
+        close(t.p, f(&c["p"]), 1e-10, &format!("p {name}"));
+    }
+}

@@ -28,6 +28,9 @@ the JSON.
   statsmodels rank_compare_2indep(x, y).tost_prob_superior(low, upp).
 * Equivalence on the Hodges-Lehmann shift: scipy.stats.mannwhitneyu
   (method='exact', untied data) on x - low (greater) and x - high (less).
+* Signed-rank test with zeros kept in the ranking (Pratt 1959), normal
+  approximation with tie and continuity correction:
+  scipy.stats.wilcoxon(zero_method='pratt', method='approx', correction=True).
 * The robust effect d_R of Algina, Keselman & Penfield (2005) with its
   constant c = winsorised SD of the standard normal, from scipy.stats.norm.
 """
@@ -235,6 +238,14 @@ def tost_hl_case(name, x, y, low, high):
     }
 
 
+def pratt_case(name, d):
+    out = []
+    for alt in ALTS:
+        r = stats.wilcoxon(d, zero_method="pratt", method="approx", correction=True, alternative=alt)
+        out.append({"name": name, "d": fl(d), "alternative": alt, "p": float(r.pvalue)})
+    return out
+
+
 def main():
     bm = []
     fixed = [
@@ -275,6 +286,12 @@ def main():
         y = list((rng.normal(0.1, 1.0, 11)).round(4))
         eq_hl.append(tost_hl_case(f"hl_{i}", x, y, lo, hi))
 
+    pratt = []
+    pratt += pratt_case("zeros_and_ties", [0, 0, 0, 1, -1, 2, 2, 3, 3, 3, -2, 4, 5, 0, 1])
+    pratt += pratt_case("one_zero", [0.0, 1.2, -0.4, 2.2, 3.1, 0.7, -1.5, 2.8, 1.9, 0.3])
+    pratt += pratt_case("many_zeros", [0] * 8 + [1, 2, 3, -1, 4, 5, 2, 6, 1, 3])
+    pratt += pratt_case("likert_diffs", list(rng.integers(-2, 4, 40)))
+
     doc = {
         "scipy_version": scipy.__version__,
         "statsmodels_version": statsmodels.__version__,
@@ -285,6 +302,7 @@ def main():
         "trimmed_one_sample": one,
         "tost_prob_superiority": eq_ps,
         "tost_hodges_lehmann": eq_hl,
+        "wilcoxon_pratt_normal": pratt,
     }
     with open(OUT, "w") as f:
         json.dump(doc, f, indent=1)
