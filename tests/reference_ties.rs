@@ -95,6 +95,8 @@ fn wilcoxon_matches_enumeration() {
         assert_eq!(t.p_detail, method(&c["method"]), "{name}");
         assert_eq!(t.statistic, c["w_plus"].as_f64().unwrap(), "W+ {name}");
         close(t.p, c["p"].as_f64().unwrap(), &format!("p {name}"));
+        assert_eq!(t.interval.low, c["interval"][0].as_f64(), "HL low {name}");
+        assert_eq!(t.interval.high, c["interval"][1].as_f64(), "HL high {name}");
     }
 }
 

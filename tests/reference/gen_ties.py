@@ -12,7 +12,9 @@ outright, in exact rational arithmetic.
   Sizes n1, n2 <= 10 with tie patterns from small integer scales.
 * Wilcoxon signed-rank: every one of the 2^n sign patterns of the
   ranked |d| (n <= 16), with zeros dropped (Wilcoxon's rule) or kept in
-  the ranking (Pratt's rule).
+  the ranking (Pratt's rule). Interval counts: from the same distribution
+  when there are no zeros, else from the untied distribution of all the
+  differences (every sign pattern of ranks 1..n).
 
 p values: one-sided tails P(S >= s) / P(S <= s); two-sided is twice the
 smaller tail, capped at 1 (attest's documented rule). The exact
@@ -133,8 +135,20 @@ def signed_rank_case(name, d, rule):
     zeros = sum(1 for v in d if v == 0)
     tied = len(set(abs(v) for v in ranked)) < len(ranked)
     exact_untied = not tied and not (keep and zeros)
+    # Interval: order statistics of all Walsh averages. Without zeros the
+    # critical counts come from the same (conditional) distribution as p;
+    # with zeros from the untied distribution of all len(d) differences.
+    walsh = sorted((Fraction(d[i]) + Fraction(d[j])) / 2 for i in range(len(d)) for j in range(i, len(d)))
+    m = len(d) * (len(d) + 1) // 2
+    if zeros == 0:
+        ci_counts = counts
+    else:
+        ci_counts = Counter()
+        for signs in itertools.product((0, 1), repeat=len(d)):
+            ci_counts[sum(r + 1 for r, s in enumerate(signs) if s)] += 1
     out = []
     for alt in ALTS:
+        k_low, k_high = crit(ci_counts, m, alt)
         out.append(
             {
                 "name": name,
@@ -144,6 +158,7 @@ def signed_rank_case(name, d, rule):
                 "method": "exact" if exact_untied else "exact-with-ties",
                 "w_plus": float(w_plus),
                 "p": float(p_of(counts, w_plus, alt)),
+                "interval": ends(walsh, k_low, k_high, alt),
             }
         )
     return out
