@@ -40,6 +40,7 @@
 
 use super::dist::{t_quantile, t_sf};
 use super::hodges_lehmann::SplitMix64;
+use super::rank_tests::check_level;
 use super::ranks::for_each_tie_group;
 use super::{ensure_finite, p_from_symmetric, Alternative, Interval, StatsError};
 use serde::{Deserialize, Serialize};
@@ -151,7 +152,9 @@ fn moments(p: &Pooled, first: &[bool], n1: usize, n2: usize) -> (f64, f64, f64) 
     (theta, sizes[0] * s1, sizes[1] * s2)
 }
 
-fn check(x: &[f64], y: &[f64], level: f64) -> Result<(), StatsError> {
+/// Both groups need two finite values (each group's variance has n − 1
+/// in its denominator).
+fn check_groups(x: &[f64], y: &[f64]) -> Result<(), StatsError> {
     for g in [x, y] {
         if g.len() < 2 {
             return Err(StatsError::TooFew {
@@ -160,11 +163,6 @@ fn check(x: &[f64], y: &[f64], level: f64) -> Result<(), StatsError> {
             });
         }
         ensure_finite(g)?;
-    }
-    if !(level > 0.0 && level < 1.0) {
-        return Err(StatsError::BadParameter(
-            "confidence level must be in (0, 1)",
-        ));
     }
     Ok(())
 }
@@ -193,7 +191,8 @@ pub fn brunner_munzel(
     alt: Alternative,
     level: f64,
 ) -> Result<BrunnerMunzel, StatsError> {
-    check(x, y, level)?;
+    check_level(level)?;
+    check_groups(x, y)?;
     let (n1, n2) = (x.len(), y.len());
     let (p, first) = pooled(x, y);
     let (theta, a, b) = moments(&p, &first, n1, n2);
@@ -247,7 +246,7 @@ pub fn brunner_munzel_permutation(
     permutations: u64,
     seed: u64,
 ) -> Result<PermutationP, StatsError> {
-    check(x, y, 0.5)?;
+    check_groups(x, y)?;
     if permutations == 0 || permutations > MAX_PERMUTATIONS {
         return Err(StatsError::BadParameter(
             "the number of permutations must be between 1 and 10 000 000",

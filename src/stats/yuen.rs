@@ -30,6 +30,7 @@
 //! One sort per sample, O(n log n).
 
 use super::dist::{normal_pdf, normal_quantile, t_quantile, t_sf};
+use super::rank_tests::check_level;
 use super::{ensure_finite, p_from_symmetric, Alternative, Interval, StatsError};
 use serde::{Deserialize, Serialize};
 
@@ -118,11 +119,7 @@ fn finish(
     alt: Alternative,
     level: f64,
 ) -> Result<TrimmedT, StatsError> {
-    if !(level > 0.0 && level < 1.0) {
-        return Err(StatsError::BadParameter(
-            "confidence level must be in (0, 1)",
-        ));
-    }
+    check_level(level)?;
     let se = d.sqrt();
     if se == 0.0 || !se.is_finite() {
         return Err(StatsError::ZeroVariance);
@@ -195,6 +192,27 @@ pub fn trimmed_t_one_sample(
     finish(estimate, d, a.h - 1.0, effect, trim, alt, level)
 }
 
+/// The paired trimmed t: [`trimmed_t_one_sample`] on the differences
+/// `first − second` against 0 (Tukey & McLaughlin 1963).
+///
+/// Errors: unequal lengths (`BadParameter`), otherwise as
+/// [`trimmed_t_one_sample`].
+pub fn trimmed_t_paired(
+    first: &[f64],
+    second: &[f64],
+    trim: f64,
+    alt: Alternative,
+    level: f64,
+) -> Result<TrimmedT, StatsError> {
+    if first.len() != second.len() {
+        return Err(StatsError::BadParameter(
+            "paired samples must have the same length",
+        ));
+    }
+    let d: Vec<f64> = first.iter().zip(second).map(|(a, b)| a - b).collect();
+    trimmed_t_one_sample(&d, 0.0, trim, alt, level)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -232,6 +250,17 @@ mod tests {
         let o = trimmed_t_one_sample(&x, 1.0, 0.0, Alternative::Greater, 0.95).unwrap();
         let t = super::super::ttest::one_sample_t(&x, 1.0, Alternative::Greater, 0.95).unwrap();
         assert!((o.p - t.p).abs() < 1e-14);
+    }
+
+    #[test]
+    fn paired_is_the_one_sample_test_of_the_differences() {
+        let a = [5.0, 7.5, 6.0, 9.0, 4.0, 8.0, 30.0, 6.5];
+        let b = [4.0, 6.0, 6.5, 7.0, 3.0, 7.5, 5.0, 5.0];
+        let d: Vec<f64> = a.iter().zip(&b).map(|(x, y)| x - y).collect();
+        let p = trimmed_t_paired(&a, &b, 0.2, Alternative::Greater, 0.9).unwrap();
+        let o = trimmed_t_one_sample(&d, 0.0, 0.2, Alternative::Greater, 0.9).unwrap();
+        assert_eq!(p, o);
+        assert!(trimmed_t_paired(&a, &b[1..], 0.2, Alternative::Greater, 0.9).is_err());
     }
 
     #[test]
