@@ -1,8 +1,9 @@
 //! Property tests for the rank tests and the Hodges–Lehmann selection.
 //! Every property is a hand-derivable identity (symmetry under swapping
 //! groups or negating differences, probabilities in [0, 1], and selection
-//! agreeing with sorting all n1·n2 values), so no expected value comes from
-//! the code under test.
+//! agreeing with sorting all n1·n2 values, exact p by listing every split,
+//! intervals agreeing with the test), so no expected value comes from the
+//! code under test.
 
 use attest::stats::hodges_lehmann::{
     hl_one_sample, hl_shift, kth_pairwise_difference, kth_walsh_average,
@@ -117,6 +118,100 @@ proptest! {
             prop_assert_eq!(a.estimate, -b.estimate);
             prop_assert_eq!(a.interval.low, b.interval.high.map(|v| -v));
             prop_assert_eq!(a.n_used + a.zeros_dropped, d.len());
+        }
+    }
+}
+
+/// Midranks of `v` by counting (rank = #below + (#equal + 1)/2), doubled.
+fn doubled_midranks(v: &[f64]) -> Vec<u64> {
+    v.iter()
+        .map(|a| {
+            let below = v.iter().filter(|b| *b < a).count() as u64;
+            let equal = v.iter().filter(|b| *b == a).count() as u64;
+            2 * below + equal + 1
+        })
+        .collect()
+}
+
+/// One-sided exact p of U1 by listing every split (bitmasks of size n1).
+fn brute_mw_p(x: &[f64], y: &[f64], greater: bool) -> f64 {
+    let pooled: Vec<f64> = x.iter().chain(y).copied().collect();
+    let r = doubled_midranks(&pooled);
+    let (n1, n) = (x.len(), pooled.len());
+    let observed: u64 = r[..n1].iter().sum();
+    let (mut hits, mut total) = (0u64, 0u64);
+    for mask in 0u32..(1 << n) {
+        if mask.count_ones() as usize != n1 {
+            continue;
+        }
+        let s: u64 = (0..n).filter(|i| mask >> i & 1 == 1).map(|i| r[i]).sum();
+        total += 1;
+        hits += u64::from(if greater {
+            s >= observed
+        } else {
+            s <= observed
+        });
+    }
+    hits as f64 / total as f64
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(200))]
+
+    /// The tied exact p is the share of splits at least as extreme
+    /// (counted here by bitmask enumeration, independent of the DP).
+    #[test]
+    fn tied_exact_p_equals_enumeration(
+        x in prop::collection::vec((0i32..4).prop_map(f64::from), 1..7),
+        y in prop::collection::vec((0i32..4).prop_map(f64::from), 1..7),
+    ) {
+        for (alt, greater) in [(Alternative::Greater, true), (Alternative::Less, false)] {
+            let Ok(t) = mann_whitney(&x, &y, alt, 0.95) else {
+                continue; // every value equal
+            };
+            let want = brute_mw_p(&x, &y, greater);
+            prop_assert!((t.p - want).abs() <= 1e-12 * want, "{} vs {}", t.p, want);
+        }
+    }
+
+    /// With an exact p, the interval excludes 0 exactly when p < α
+    /// (untied data, so the shift and the test agree exactly).
+    #[test]
+    fn exact_interval_excludes_zero_iff_p_below_alpha(
+        x in prop::collection::btree_set(-40i32..40, 1..8),
+        y in prop::collection::btree_set(-40i32..40, 1..8),
+        level in prop::sample::select(vec![0.8, 0.9, 0.95]),
+    ) {
+        // Odd x, even y: no ties and no zero differences.
+        let x: Vec<f64> = x.iter().map(|v| f64::from(2 * v + 1)).collect();
+        let y: Vec<f64> = y.iter().map(|v| f64::from(2 * v)).collect();
+        let alpha = attest::stats::alpha_of_level(level);
+        for alt in ALTS {
+            let t = mann_whitney(&x, &y, alt, level).unwrap();
+            let excludes = t.interval.low.is_some_and(|l| l > 0.0)
+                || t.interval.high.is_some_and(|h| h < 0.0);
+            prop_assert_eq!(excludes, t.p < alpha, "{:?} p = {} level {}", alt, t.p, level);
+        }
+    }
+
+    /// The same for the signed-rank interval (distinct |d|, no zeros).
+    #[test]
+    fn signed_rank_interval_excludes_zero_iff_p_below_alpha(
+        mags in prop::collection::btree_set(1i32..60, 1..10),
+        signs in prop::collection::vec(any::<bool>(), 10),
+        level in prop::sample::select(vec![0.8, 0.9, 0.95]),
+    ) {
+        let d: Vec<f64> = mags
+            .iter()
+            .zip(&signs)
+            .map(|(&m, &s)| f64::from(if s { m } else { -m }))
+            .collect();
+        let alpha = attest::stats::alpha_of_level(level);
+        for alt in ALTS {
+            let t = wilcoxon_signed_rank(&d, alt, level).unwrap();
+            let excludes = t.interval.low.is_some_and(|l| l > 0.0)
+                || t.interval.high.is_some_and(|h| h < 0.0);
+            prop_assert_eq!(excludes, t.p < alpha, "{:?} p = {} level {}", alt, t.p, level);
         }
     }
 }

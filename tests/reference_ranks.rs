@@ -3,14 +3,26 @@
 //! tests/reference/gen_ranks.py (stored in tests/reference/ranks.json,
 //! inputs included), and the NIST StRD AtmWtAg data.
 
-use attest::stats::mann_whitney::{mann_whitney, u_statistic_sorted};
+use attest::stats::mann_whitney::{mann_whitney, mann_whitney_with, u_statistic_sorted};
 use attest::stats::normality::shapiro_wilk;
+use attest::stats::rank_tests::RankOptions;
 use attest::stats::spread::{brown_forsythe, levene};
-use attest::stats::wilcoxon::wilcoxon_signed_rank;
-use attest::stats::{Alternative, PMethod};
+use attest::stats::wilcoxon::wilcoxon_signed_rank_with;
+use attest::stats::{Alternative, PMethod, RankPMethod};
 use serde_json::Value;
 
 const SOURCE: &str = "scipy 1.17.1 via tests/reference/gen_ranks.py";
+
+/// attest 1's rule, which gen_ranks.py mirrors: exact only without ties
+/// and zeros, otherwise the normal approximation (which is what these
+/// scipy values check). The exact distribution conditional on ties is
+/// checked against brute-force enumeration in reference_ties.rs.
+fn untied_exact_only() -> RankOptions {
+    RankOptions {
+        exact_max_cells: 0,
+        ..RankOptions::default()
+    }
+}
 
 fn load() -> Value {
     let text = include_str!("reference/ranks.json");
@@ -56,7 +68,8 @@ fn mann_whitney_matches_scipy() {
     let level = f(&doc["level"]);
     for c in doc["mann_whitney"].as_array().unwrap() {
         let name = format!("{} {} ({SOURCE})", c["name"], c["alternative"]);
-        let t = mann_whitney(&vec(&c["x"]), &vec(&c["y"]), alt(&c["alternative"]), level)
+        let (x, y) = (vec(&c["x"]), vec(&c["y"]));
+        let t = mann_whitney_with(&x, &y, alt(&c["alternative"]), level, &untied_exact_only())
             .unwrap_or_else(|e| panic!("{name}: {e}"));
         let method = if c["method"] == "exact" {
             PMethod::Exact
@@ -92,7 +105,8 @@ fn wilcoxon_matches_scipy() {
     let level = f(&doc["level"]);
     for c in doc["wilcoxon"].as_array().unwrap() {
         let name = format!("{} {} ({SOURCE})", c["name"], c["alternative"]);
-        let t = wilcoxon_signed_rank(&vec(&c["d"]), alt(&c["alternative"]), level)
+        let d = vec(&c["d"]);
+        let t = wilcoxon_signed_rank_with(&d, alt(&c["alternative"]), level, &untied_exact_only())
             .unwrap_or_else(|e| panic!("{name}: {e}"));
         let method = if c["method"] == "exact" {
             PMethod::Exact
@@ -188,5 +202,6 @@ fn atmwtag_mann_whitney_u() {
     a.sort_by(f64::total_cmp);
     b.sort_by(f64::total_cmp);
     assert_eq!(u_statistic_sorted(&a, &b), (450.0, 12.0));
-    assert_eq!(t.p_method, PMethod::NormalApproximation);
+    // Tied, and 24 × 24 is within the exact bound: conditional exact p.
+    assert_eq!(t.p_detail, RankPMethod::ExactWithTies);
 }

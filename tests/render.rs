@@ -108,6 +108,7 @@ fn plan() -> Plan {
                 label: Some("fruit per plant".into()),
                 units: Some("kg".into()),
                 robustness: true,
+                conventions: Default::default(),
                 planning: None,
             },
             Hypothesis {
@@ -125,6 +126,7 @@ fn plan() -> Plan {
                 label: Some("weekly hours".into()),
                 units: Some("h".into()),
                 robustness: false,
+                conventions: Default::default(),
                 planning: None,
             },
         ],

@@ -85,7 +85,9 @@ pub(crate) struct Answer {
     pub alternative: Alternative,
     /// Significance level.
     pub alpha: f64,
-    /// Effect size (Cohen's d, or d_z), in the tested direction.
+    /// Effect size (Cohen's d, or d_z) as a size in the tested direction:
+    /// never negative, whatever the alternative, the same convention as
+    /// `--effect` (a `less` test of 0.5 plans a difference of −0.5 SD).
     pub effect: f64,
     /// Sizes: `[n₁, n₂]` for independent designs, `[n]` otherwise.
     pub n: Vec<usize>,
@@ -232,7 +234,7 @@ pub(crate) fn answer(q: &Question) -> Result<Answer> {
         design: q.design,
         alternative: q.alternative,
         alpha: q.alpha,
-        effect,
+        effect: effect.abs(),
         n: sizes,
         power: achieved,
         target_power: q.power,
@@ -364,12 +366,32 @@ mod tests {
     }
 
     #[test]
-    fn a_less_test_plans_a_negative_effect() {
+    fn a_less_test_reports_its_effect_in_the_tested_direction() {
         let mut question = q(Some(0.5), Some(0.8), None);
         question.alternative = Alternative::Less;
         let a = answer(&question).unwrap();
-        assert_eq!(a.effect, -0.5);
+        assert_eq!(a.effect, 0.5);
         // One-sided tests need fewer units than two-sided ones.
         assert!(a.n[0] < 64);
+        // Solving for the effect: the same positive size for `less` as for
+        // `greater` (the two tests mirror each other), as `--effect` takes it.
+        let mut less = q(None, Some(0.8), Some(30));
+        less.design = Design::Paired;
+        less.alternative = Alternative::Less;
+        let mut greater = less.clone();
+        greater.alternative = Alternative::Greater;
+        let (l, g) = (answer(&less).unwrap(), answer(&greater).unwrap());
+        assert!(l.effect > 0.0);
+        assert!(
+            (l.effect - g.effect).abs() < 1e-12,
+            "{} vs {}",
+            l.effect,
+            g.effect
+        );
+        // And feeding that answer back as --effect gives the power asked for.
+        let mut back = q(Some(l.effect), None, Some(30));
+        back.design = Design::Paired;
+        back.alternative = Alternative::Less;
+        assert!((answer(&back).unwrap().power - 0.8).abs() < 1e-6);
     }
 }

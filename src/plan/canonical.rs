@@ -145,6 +145,58 @@ mod tests {
     }
 
     #[test]
+    fn demo_plans_keep_their_locked_hashes() {
+        // Each committed demo lock records the hash its plan had when it
+        // was locked; keys added since (all optional, left out when
+        // absent) must not change it. DEVELOPERS.md, "Compatibility of
+        // the analysis file".
+        let demos = [
+            (
+                "commute",
+                include_str!("../../analyses/commute.toml"),
+                include_str!("../../analyses/commute.lock"),
+            ),
+            (
+                "espresso",
+                include_str!("../../analyses/espresso.toml"),
+                include_str!("../../analyses/espresso.lock"),
+            ),
+            (
+                "loaves",
+                include_str!("../../analyses/loaves.toml"),
+                include_str!("../../analyses/loaves.lock"),
+            ),
+            (
+                "picking",
+                include_str!("../../analyses/picking.toml"),
+                include_str!("../../analyses/picking.lock"),
+            ),
+            (
+                "thermostat",
+                include_str!("../../analyses/thermostat.toml"),
+                include_str!("../../analyses/thermostat.lock"),
+            ),
+            (
+                "tutoring",
+                include_str!("../../analyses/tutoring.toml"),
+                include_str!("../../analyses/tutoring.lock"),
+            ),
+        ];
+        for (name, toml_text, lock_text) in demos {
+            let path = format!("{name}.toml");
+            let plan = super::super::validate::parse(std::path::Path::new(&path), toml_text)
+                .unwrap_or_else(|e| panic!("{name}: {}", e.what))
+                .plan;
+            let lock: Value = serde_json::from_str(lock_text).expect("lock is JSON");
+            assert_eq!(
+                plan_hash(&plan),
+                lock["plan_sha256"].as_str().expect("lock has plan_sha256"),
+                "{name}"
+            );
+        }
+    }
+
+    #[test]
     fn diff_names_leaf_fields() {
         let a: Value =
             serde_json::json!({"alpha": 0.05, "hypotheses": [{"id": "H1", "method": "welch-t"}]});

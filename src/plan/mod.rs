@@ -12,6 +12,7 @@ pub(crate) mod raw;
 pub mod validate;
 
 use crate::stats::multiplicity::Correction;
+use crate::stats::rank_tests::{RankOptions, ZeroRule};
 use crate::stats::Alternative;
 use serde::{Deserialize, Serialize};
 use std::path::PathBuf;
@@ -307,9 +308,87 @@ pub struct Hypothesis {
     pub units: Option<String>,
     /// Whether to add the other methods for this design as robustness checks.
     pub robustness: bool,
+    /// Conventions of the rank and robust methods; every one absent (and
+    /// left out of the canonical plan) unless the file states a
+    /// non-default choice.
+    #[serde(default, skip_serializing_if = "Conventions::is_default")]
+    pub conventions: Conventions,
     /// The sample-size plan, if the analysis file gives one.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub planning: Option<Planning>,
+}
+
+/// Default trimming proportion of the trimmed-mean methods (Yuen 1974;
+/// 20% is common practice).
+pub const DEFAULT_TRIM: f64 = 0.2;
+/// Default number of permutations for permutation p values.
+pub const DEFAULT_PERMUTATIONS: u64 = 10_000;
+
+/// The rank test the `checked` rule uses for independent groups when the
+/// data do not look normal.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum RankFallback {
+    /// Mann–Whitney U (the default).
+    #[default]
+    MannWhitney,
+    /// Brunner–Munzel, which does not assume equal spreads.
+    BrunnerMunzel,
+}
+
+/// The conventions a hypothesis may state for its rank and robust
+/// methods. Each is `None` when the file leaves the key out *or* writes
+/// the default, so stating a default never changes the plan's hash and
+/// plans written before these keys existed keep theirs.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct Conventions {
+    /// `zero_differences`: Pratt's rule when `keep-in-ranking`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub zero_differences: Option<ZeroRule>,
+    /// `continuity_correction`: `Some(false)` switches it off.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub continuity_correction: Option<bool>,
+    /// `trim`: trimming proportion other than [`DEFAULT_TRIM`].
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub trim: Option<f64>,
+    /// `permutations`: a count other than [`DEFAULT_PERMUTATIONS`].
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub permutations: Option<u64>,
+    /// `rank_fallback`: a fallback other than Mann–Whitney.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rank_fallback: Option<RankFallback>,
+}
+
+impl Conventions {
+    /// Whether nothing differs from the defaults.
+    pub fn is_default(&self) -> bool {
+        *self == Conventions::default()
+    }
+
+    /// The rank-test options these conventions ask for.
+    pub fn rank_options(&self) -> RankOptions {
+        let d = RankOptions::default();
+        RankOptions {
+            zeros: self.zero_differences.unwrap_or(d.zeros),
+            continuity: self.continuity_correction.unwrap_or(d.continuity),
+            ..d
+        }
+    }
+
+    /// The trimming proportion.
+    pub fn trim(&self) -> f64 {
+        self.trim.unwrap_or(DEFAULT_TRIM)
+    }
+
+    /// The number of permutations.
+    pub fn permutations(&self) -> u64 {
+        self.permutations.unwrap_or(DEFAULT_PERMUTATIONS)
+    }
+
+    /// The rank test `checked` falls back to for independent groups.
+    pub fn rank_fallback(&self) -> RankFallback {
+        self.rank_fallback.unwrap_or_default()
+    }
 }
 
 /// The sample-size plan of one hypothesis (`[hypothesis.planning]`).

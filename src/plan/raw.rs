@@ -147,6 +147,16 @@ pub(crate) struct RawHypothesis {
     pub units: Option<String>,
     /// Robustness analyses on/off.
     pub robustness: Option<bool>,
+    /// Signed-rank zero rule: `drop` or `keep-in-ranking`.
+    pub zero_differences: Option<Spanned<String>>,
+    /// Continuity correction of the rank tests' normal approximation.
+    pub continuity_correction: Option<Spanned<bool>>,
+    /// Trimming proportion of the trimmed-mean methods.
+    pub trim: Option<Spanned<Num>>,
+    /// Number of permutations of the permutation p values.
+    pub permutations: Option<Spanned<i64>>,
+    /// Rank test `checked` falls back to for independent groups.
+    pub rank_fallback: Option<Spanned<String>>,
     /// `[hypothesis.planning]`.
     pub planning: Option<Spanned<RawPlanning>>,
 }

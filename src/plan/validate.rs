@@ -816,10 +816,107 @@ impl Checker<'_> {
             label: r.label.clone(),
             units: r.units.clone(),
             robustness: r.robustness.unwrap_or(true),
+            conventions: self.conventions(design, method, r)?,
             planning: match &r.planning {
                 Some(p) => Some(self.planning(design, method, p)?),
                 None => None,
             },
+        })
+    }
+
+    /// The rank and robust conventions of a hypothesis; a stated default
+    /// is stored as absent (see [`Conventions`]).
+    fn conventions(
+        &self,
+        design: Design,
+        method: Method,
+        r: &RawHypothesis,
+    ) -> Result<Conventions> {
+        let zero_differences = match &r.zero_differences {
+            None => None,
+            Some(z) => {
+                if design == Design::Independent {
+                    return Err(self
+                        .at(
+                            z,
+                            "`zero_differences` applies to paired and one-sample designs only",
+                        )
+                        .help("remove it; independent groups have no differences to be zero"));
+                }
+                let rule = self.choice(
+                    z,
+                    "zero_differences",
+                    &[
+                        ("drop", ZeroRule::Drop),
+                        ("keep-in-ranking", ZeroRule::KeepInRanking),
+                    ],
+                )?;
+                (rule != ZeroRule::default()).then_some(rule)
+            }
+        };
+        let continuity_correction = r
+            .continuity_correction
+            .as_ref()
+            .map(|c| *c.get_ref())
+            .filter(|&c| !c);
+        let trim = match &r.trim {
+            None => None,
+            Some(t) => {
+                let v = t.get_ref().0;
+                if !(0.0..0.5).contains(&v) {
+                    return Err(self
+                        .at(
+                            t,
+                            format!("`trim` must be at least 0 and below 0.5, found {v}"),
+                        )
+                        .help(format!(
+                            "the proportion cut from each end; {DEFAULT_TRIM} is usual"
+                        )));
+                }
+                (v != DEFAULT_TRIM).then_some(v)
+            }
+        };
+        let permutations = match &r.permutations {
+            None => None,
+            Some(p) => {
+                let v = *p.get_ref();
+                let max = crate::stats::brunner_munzel::MAX_PERMUTATIONS as i64;
+                if !(1..=max).contains(&v) {
+                    return Err(self
+                        .at(
+                            p,
+                            format!("`permutations` must be between 1 and {max}, found {v}"),
+                        )
+                        .help(format!("{DEFAULT_PERMUTATIONS} is usual")));
+                }
+                (v as u64 != DEFAULT_PERMUTATIONS).then_some(v as u64)
+            }
+        };
+        let rank_fallback = match &r.rank_fallback {
+            None => None,
+            Some(f) => {
+                if method != Method::Checked || design != Design::Independent {
+                    return Err(self
+                        .at(f, "`rank_fallback` is used only by `method = \"checked\"` with independent groups")
+                        .help("remove it, or preregister the rank test itself as the method"));
+                }
+                let v = self.choice(
+                    f,
+                    "rank_fallback",
+                    &[
+                        ("mann-whitney", RankFallback::MannWhitney),
+                        ("brunner-munzel", RankFallback::BrunnerMunzel),
+                    ],
+                )?;
+                (v != RankFallback::default()).then_some(v)
+            }
+        };
+        Ok(Conventions {
+            zero_differences,
+            continuity_correction,
+            trim,
+            permutations,
+            rank_fallback,
         })
     }
 
@@ -1152,5 +1249,72 @@ method = "welch-t"
         // Classic example (common practice): kitten → sitting needs 3 edits.
         assert_eq!(edit_distance("kitten", "sitting"), 3);
         assert_eq!(edit_distance("", "abc"), 3);
+    }
+
+    #[test]
+    fn conventions_are_read_and_defaults_stay_absent() {
+        let paired = GOOD
+            .replace("design = \"independent\"", "design = \"paired\"")
+            .replace(
+                "group = \"proof\"\nlevels = [\"long\", \"standard\"]\n",
+                "first = \"a\"\nsecond = \"b\"\n",
+            )
+            .replace("outcome = \"volume_ml\"\n", "")
+            .replace("welch-t", "wilcoxon-signed-rank");
+        let keep = paired.replace(
+            "method =",
+            "zero_differences = \"keep-in-ranking\"\ncontinuity_correction = false\ntrim = 0.1\npermutations = 2000\nmethod =",
+        );
+        let c = parse(Path::new("a.toml"), &keep).unwrap().plan.hypotheses[0].conventions;
+        assert_eq!(c.zero_differences, Some(ZeroRule::KeepInRanking));
+        assert_eq!(c.rank_options().zeros, ZeroRule::KeepInRanking);
+        assert!(!c.rank_options().continuity);
+        assert_eq!((c.trim(), c.permutations()), (0.1, 2000));
+        // Writing the defaults is the same plan as leaving them out.
+        let defaults = paired.replace(
+            "method =",
+            "zero_differences = \"drop\"\ncontinuity_correction = true\ntrim = 0.2\npermutations = 10000\nmethod =",
+        );
+        let a = parse(Path::new("a.toml"), &defaults).unwrap().plan;
+        let b = parse(Path::new("a.toml"), &paired).unwrap().plan;
+        assert!(a.hypotheses[0].conventions.is_default());
+        assert_eq!(
+            super::super::canonical::plan_hash(&a),
+            super::super::canonical::plan_hash(&b)
+        );
+    }
+
+    #[test]
+    fn conventions_are_checked() {
+        let bad =
+            |from: &str, to: &str| parse(Path::new("a.toml"), &GOOD.replace(from, to)).unwrap_err();
+        let e = bad("method =", "trim = 0.5\nmethod =");
+        assert_eq!(e.what, "`trim` must be at least 0 and below 0.5, found 0.5");
+        let e = bad("method =", "permutations = 0\nmethod =");
+        assert!(e.what.starts_with("`permutations` must be between 1 and"));
+        let e = bad("method =", "zero_differences = \"drop\"\nmethod =");
+        assert!(e.what.contains("paired and one-sample designs only"));
+        // rank_fallback needs `checked`; with it, a typo gets a suggestion.
+        let e = bad("method =", "rank_fallback = \"brunner-munzel\"\nmethod =");
+        assert!(e.what.contains("used only by `method = \"checked\"`"));
+        let checked = GOOD.replace("welch-t", "checked");
+        let e = parse(
+            Path::new("a.toml"),
+            &checked.replace("method =", "rank_fallback = \"brunner-munzell\"\nmethod ="),
+        )
+        .unwrap_err();
+        assert!(e
+            .help
+            .unwrap()
+            .starts_with("did you mean \"brunner-munzel\"?"));
+        let ok = parse(
+            Path::new("a.toml"),
+            &checked.replace("method =", "rank_fallback = \"brunner-munzel\"\nmethod ="),
+        )
+        .unwrap();
+        assert_eq!(
+            ok.plan.hypotheses[0].conventions.rank_fallback(),
+            RankFallback::BrunnerMunzel
+        );
     }
 }

@@ -135,10 +135,10 @@ const SAMPLED_ABOVE: usize = 16 * SAMPLE_MIN;
 /// number generators", OOPSLA '14): a tiny generator with a fixed seed, so
 /// every run draws the same pivots. The pivots only decide how fast the
 /// selection narrows; the value it returns is exact either way.
-struct SplitMix64(u64);
+pub(crate) struct SplitMix64(pub(crate) u64);
 
 impl SplitMix64 {
-    fn next(&mut self) -> u64 {
+    pub(crate) fn next(&mut self) -> u64 {
         self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
         let mut z = self.0;
         z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
@@ -148,7 +148,7 @@ impl SplitMix64 {
 
     /// Uniform in `0..n` (n > 0), by Lemire's multiply-shift (the tiny
     /// bias is irrelevant to a pivot).
-    fn below(&mut self, n: usize) -> usize {
+    pub(crate) fn below(&mut self, n: usize) -> usize {
         ((self.next() as u128 * n as u128) >> 64) as usize
     }
 }

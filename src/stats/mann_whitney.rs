@@ -9,12 +9,13 @@
 //! O(N) in memory.
 
 use super::hodges_lehmann::{hl_shift_sorted, kth_pairwise_difference_sorted};
-use super::rank_exact::mann_whitney_exact;
+use super::rank_exact::{mann_whitney_exact, rank_sum_conditional};
 use super::rank_tests::{
-    check_level, fisher_interval, normal_critical_k, normal_p, order_interval, tail_alpha, RankTest,
+    check_level, exact_p, fisher_interval, normal_critical_k, normal_log10_p, normal_p,
+    order_interval, tail_alpha, RankOptions, RankTest,
 };
-use super::ranks::tie_term;
-use super::{ensure_finite, Alternative, PMethod, StatsError};
+use super::ranks::{for_each_tie_group, tie_term};
+use super::{ensure_finite, Alternative, RankPMethod, StatsError};
 
 /// U1 (first group over second, ties counting ½) and the tie term
 /// Σ(t³ − t) of the pooled sample, from both groups sorted ascending.
@@ -39,21 +40,54 @@ pub fn u_statistic_sorted(x: &[f64], y: &[f64]) -> (f64, f64) {
     (twice_u as f64 / 2.0, ties)
 }
 
+/// Mann–Whitney U test of `x` (first group) against `y` (second group),
+/// with attest's default conventions ([`RankOptions::default`]).
+pub fn mann_whitney(
+    x: &[f64],
+    y: &[f64],
+    alt: Alternative,
+    level: f64,
+) -> Result<RankTest, StatsError> {
+    mann_whitney_with(x, y, alt, level, &RankOptions::default())
+}
+
+/// Doubled midranks (integers) of the pooled sample of two ascending
+/// groups, in merge order.
+pub(crate) fn doubled_pooled_ranks(x: &[f64], y: &[f64]) -> Vec<u64> {
+    let mut pooled: Vec<f64> = x.iter().chain(y).copied().collect();
+    pooled.sort_unstable_by(f64::total_cmp);
+    let mut scores = Vec::with_capacity(pooled.len());
+    for_each_tie_group(pooled.iter().copied(), |start, len| {
+        let r2 = (2 * start + len + 1) as u64;
+        scores.extend(std::iter::repeat_n(r2, len));
+    });
+    scores
+}
+
 /// Mann–Whitney U test of `x` (first group) against `y` (second group).
 ///
 /// * Statistic: U1 = R1 − n1(n1+1)/2 with midranks for ties.
-/// * p: exact permutation distribution when the pooled sample has no ties
-///   and the sizes are within the exact limits of
-///   [`super::rank_exact::mw_exact_feasible`] (n1·n2 ≤ 250 000 and
-///   C(n1+n2, n1) < 2¹²⁰, where the exact count is exact in i128 and takes
-///   milliseconds); otherwise the normal approximation with tie-corrected
-///   variance n1n2/12·((N+1) − Σ(t³−t)/(N(N−1))) and continuity correction.
+/// * p, three routes, reported in [`RankTest::p_detail`]:
+///   - no ties, sizes within [`super::rank_exact::mw_exact_feasible`]
+///     (n1·n2 ≤ 250 000 and C(n1+n2, n1) < 2¹²⁰): the exact permutation
+///     distribution (`exact`);
+///   - ties, and the exact count conditional on the tie pattern within
+///     `options.exact_max_cells` DP cells
+///     ([`super::rank_exact::rank_sum_conditional`]): that distribution
+///     (`exact-with-ties`);
+///   - otherwise the normal approximation with tie-corrected variance
+///     n1n2/12·((N+1) − Σ(t³−t)/(N(N−1))) and, unless switched off, the
+///     continuity correction (`normal-approximation`).
+///
+///   Two-sided exact p is twice the smaller tail, capped at 1.
 /// * Estimate: Hodges–Lehmann shift, the median of all `x_i − y_j`, with
 ///   the distribution-free interval `[D_(k), D_(n1n2+1−k)]` (Bauer 1972,
 ///   "Constructing confidence sets using rank statistics", JASA 67,
-///   687–690; Hollander & Wolfe 1999, §4.3): `k` from the exact U
-///   distribution when p is exact, else from the large-sample
-///   approximation (see `normal_critical_k`, untied variance).
+///   687–690; Hollander & Wolfe 1999, §4.3): `k` from the same exact
+///   distribution the p came from (counts of U ≤ k − 1, conditional on
+///   ties when p is), chosen so that the interval excludes 0 exactly when
+///   p < α (see [`exact_p`]); else from the large-sample approximation
+///   (see `normal_critical_k`, untied variance).
 /// * Rank-biserial r = 2·U1/(n1n2) − 1 (Glass 1965; Cureton 1956) with the
 ///   Fisher-z interval of [`fisher_interval`], se = 2σ_U/(n1n2).
 /// * Probability of superiority U1/(n1n2) (McGraw & Wong 1992,
@@ -62,11 +96,12 @@ pub fn u_statistic_sorted(x: &[f64], y: &[f64]) -> (f64, f64) {
 /// Errors: an empty group (`TooFew`), a non-finite value (`NonFinite`),
 /// a level outside (0, 1) (`BadParameter`), and every pooled value equal
 /// (`ZeroVariance`: the ranks carry no information).
-pub fn mann_whitney(
+pub fn mann_whitney_with(
     x: &[f64],
     y: &[f64],
     alt: Alternative,
     level: f64,
+    options: &RankOptions,
 ) -> Result<RankTest, StatsError> {
     check_level(level)?;
     for g in [x, y] {
@@ -88,24 +123,28 @@ pub fn mann_whitney(
     let sigma = var.sqrt();
     let tail = tail_alpha(level, alt);
     let exact = if ties == 0.0 {
-        mann_whitney_exact(n1, n2)
+        mann_whitney_exact(n1, n2).map(|d| (d, 1, RankPMethod::Exact))
+    } else if options.exact_max_cells > 0 {
+        let scores = doubled_pooled_ranks(&xs, &ys);
+        rank_sum_conditional(&scores, n1, options.exact_max_cells)
+            .map(|d| (d, 2, RankPMethod::ExactWithTies))
     } else {
         None
     };
-    let (p, p_method, z, k) = match &exact {
-        Some(d) => {
-            let p = match alt {
-                Alternative::Greater => d.sf(u1),
-                Alternative::Less => d.cdf(u1),
-                Alternative::TwoSided => (2.0 * d.sf(u1).min(d.cdf(u1))).min(1.0),
-            };
-            (p, PMethod::Exact, None, d.critical_k(tail))
+    let (p, log10_p, p_detail, z, k) = match &exact {
+        Some((d, step, how)) => {
+            // U1 is a multiple of ½, so step·U1 is an exact integer.
+            let obs = (*step as f64 * u1) as i64;
+            let (p, log10_p, k) = exact_p(d, obs, *step, alt, level);
+            (p, log10_p, *how, None, k)
         }
         None => {
-            let (z, p) = normal_p(u1, mu, sigma, alt);
+            let (z, p) = normal_p(u1, mu, sigma, alt, options.continuity);
             let plain_sigma = (cells * (n + 1.0) / 12.0).sqrt();
             let k = normal_critical_k(mu, plain_sigma, tail);
-            (p, PMethod::NormalApproximation, Some(z), k)
+            let k = (k, k);
+            let log10_p = normal_log10_p(z, alt);
+            (p, log10_p, RankPMethod::NormalApproximation, Some(z), k)
         }
     };
     let count = n1 * n2;
@@ -122,10 +161,13 @@ pub fn mann_whitney(
     Ok(RankTest {
         statistic: u1,
         p,
-        p_method,
+        p_method: p_detail.coarse(),
+        p_detail,
+        log10_p,
         z,
         n_used: n1 + n2,
         zeros_dropped: 0,
+        zeros_ranked: 0,
         estimate: estimate?,
         interval,
         rank_biserial: r,
@@ -158,12 +200,43 @@ mod tests {
         .unwrap();
         assert_eq!(t.statistic, 9.0);
         assert_eq!(t.p, 0.05);
-        assert_eq!(t.p_method, PMethod::Exact);
+        assert_eq!(t.p_detail, RankPMethod::Exact);
         assert_eq!(t.rank_biserial, 1.0);
         assert_eq!(t.prob_superiority, Some(1.0));
-        // Differences 1..5 (median 3); k = 1 since P(U ≤ 0) = 0.05.
+        // Differences 1..5 (median 3). p = .05 is not below α = .05, so the
+        // test retains and the 95% one-sided interval must include 0: no
+        // order statistic qualifies (P(U ≤ 0) = .05 does not reject).
         assert_eq!(t.estimate, 3.0);
-        assert_eq!((t.interval.low, t.interval.high), (Some(1.0), None));
+        assert_eq!((t.interval.low, t.interval.high), (None, None));
+        // Just across the boundary (α = .0500001 > p): reject, and the
+        // interval starts at the smallest difference, above 0.
+        let t = mann_whitney(
+            &[4.0, 5.0, 6.0],
+            &[1.0, 2.0, 3.0],
+            Alternative::Greater,
+            0.949_999_9,
+        )
+        .unwrap();
+        assert_eq!(t.interval.low, Some(1.0));
+        assert!((t.log10_p - 0.05f64.log10()).abs() < 1e-15);
+    }
+
+    #[test]
+    fn ties_use_the_conditional_exact_distribution() {
+        // x = {1, 2}, y = {2, 3}: doubled ranks 2, 5, 5, 8; x holds 2 and
+        // one 5 → 2·R1 = 7, 2·U1 = 1. Of the six splits two have 2·U1 ≤ 1
+        // (hand count, see rank_exact), so P(U ≤ ½) = 1/3.
+        let t = mann_whitney(&[1.0, 2.0], &[2.0, 3.0], Alternative::Less, 0.95).unwrap();
+        assert_eq!(t.statistic, 0.5);
+        assert_eq!(t.p_detail, RankPMethod::ExactWithTies);
+        assert_eq!(t.p, 1.0 / 3.0);
+        let legacy = RankOptions {
+            exact_max_cells: 0,
+            ..RankOptions::default()
+        };
+        let t =
+            mann_whitney_with(&[1.0, 2.0], &[2.0, 3.0], Alternative::Less, 0.95, &legacy).unwrap();
+        assert_eq!(t.p_detail, RankPMethod::NormalApproximation);
     }
 
     #[test]

@@ -6,22 +6,25 @@
 //! turn that into words. One module per family keeps each published
 //! algorithm next to its citation and its tests.
 
+pub mod brunner_munzel;
 pub mod describe;
-pub(crate) mod dist;
+pub mod dist;
 pub mod effect;
 pub mod equivalence;
+pub mod equivalence_rank;
 pub mod hodges_lehmann;
 pub mod mann_whitney;
 pub mod multiplicity;
 pub mod nct;
 pub mod normality;
 pub mod power;
-pub(crate) mod rank_exact;
-pub(crate) mod rank_tests;
+pub mod rank_exact;
+pub mod rank_tests;
 pub(crate) mod ranks;
 pub mod spread;
 pub mod ttest;
 pub mod wilcoxon;
+pub mod yuen;
 
 use serde::{Deserialize, Serialize};
 
@@ -73,35 +76,6 @@ pub struct Interval {
     pub level: f64,
 }
 
-/// The verdict of a test at level α.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum Decision {
-    /// The null hypothesis is rejected in the preregistered direction.
-    Reject,
-    /// The null hypothesis is retained.
-    Retain,
-}
-
-impl Decision {
-    /// The one rejection rule every part of attest uses: reject exactly
-    /// when p < α (a p equal to α, which exact rank tests can give, is
-    /// retained; common practice, and the rule the intervals follow: the
-    /// interval excludes the null exactly when p < α).
-    pub(crate) fn at(p: f64, alpha: f64) -> Decision {
-        if p < alpha {
-            Decision::Reject
-        } else {
-            Decision::Retain
-        }
-    }
-
-    /// Whether the null was rejected.
-    pub(crate) fn rejected(self) -> bool {
-        self == Decision::Reject
-    }
-}
-
 /// How a p value was obtained.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
@@ -110,6 +84,75 @@ pub enum PMethod {
     Exact,
     /// From the normal approximation (with tie and continuity correction).
     NormalApproximation,
+}
+
+/// How a rank test's p value was obtained, in the detail a reader needs:
+/// [`PMethod`] says exact or approximate; this also says whether the
+/// exact distribution is the one conditional on ties (and kept zeros).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum RankPMethod {
+    /// Exact permutation distribution of untied ranks.
+    Exact,
+    /// Exact permutation distribution conditional on the observed tie
+    /// pattern (doubled midranks; see [`rank_exact`]).
+    ExactWithTies,
+    /// Normal approximation with tie-corrected variance (and continuity
+    /// correction unless switched off).
+    NormalApproximation,
+}
+
+impl RankPMethod {
+    /// The coarse exact/approximate distinction.
+    pub fn coarse(self) -> PMethod {
+        match self {
+            RankPMethod::Exact | RankPMethod::ExactWithTies => PMethod::Exact,
+            RankPMethod::NormalApproximation => PMethod::NormalApproximation,
+        }
+    }
+}
+
+/// The outcome of comparing a p value with the significance level.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Decision {
+    /// p < α: the null hypothesis is rejected.
+    Reject,
+    /// p ≥ α (or p undefined): the null hypothesis is retained.
+    Retain,
+}
+
+impl Decision {
+    /// The one decision rule of the project: reject exactly when p < α
+    /// (README, "interval excludes the null value exactly when p < alpha").
+    /// A NaN p never rejects. Every interval boundary, equivalence test and
+    /// power simulation goes through this function.
+    pub fn at(p: f64, alpha: f64) -> Decision {
+        if p < alpha {
+            Decision::Reject
+        } else {
+            Decision::Retain
+        }
+    }
+
+    /// Whether this is [`Decision::Reject`].
+    pub fn rejects(self) -> bool {
+        self == Decision::Reject
+    }
+}
+
+/// The significance level α belonging to a confidence level: `1 − level`
+/// taken as the decimal a plan writes (levels are decimals of at most 12
+/// places), so that level 0.95 gives exactly the α of `alpha = 0.05`
+/// rather than 1 − 0.95 = 0.050000000000000044 in binary.
+pub fn alpha_of_level(level: f64) -> f64 {
+    let a = 1.0 - level;
+    let r = (a * 1e12).round() / 1e12;
+    if (r - a).abs() <= 8.0 * f64::EPSILON {
+        r
+    } else {
+        a
+    }
 }
 
 /// Why a statistic could not be computed. Each variant is a distinct,
@@ -191,4 +234,37 @@ pub(crate) fn p_from_symmetric(
         Alternative::TwoSided => 2.0 * sf(stat.abs()),
     };
     p.clamp(0.0, 1.0)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn decision_is_strict_at_alpha() {
+        assert_eq!(Decision::at(0.05, 0.05), Decision::Retain);
+        assert_eq!(Decision::at(0.049_999_999, 0.05), Decision::Reject);
+        assert_eq!(Decision::at(f64::NAN, 0.05), Decision::Retain);
+        assert!(Decision::at(0.0, 0.05).rejects());
+    }
+
+    #[test]
+    fn alpha_of_level_is_the_plan_decimal() {
+        assert_eq!(alpha_of_level(0.95), 0.05);
+        assert_eq!(alpha_of_level(0.9), 0.1);
+        assert_eq!(alpha_of_level(0.99), 0.01);
+        assert_eq!(alpha_of_level(1.0 - 0.05), 0.05);
+        // Not a short decimal: left as the binary complement.
+        let odd = 1.0 - 1.0 / 3.0;
+        assert_eq!(alpha_of_level(odd), 1.0 - odd);
+    }
+
+    #[test]
+    fn rank_p_method_coarsens() {
+        assert_eq!(RankPMethod::ExactWithTies.coarse(), PMethod::Exact);
+        assert_eq!(
+            RankPMethod::NormalApproximation.coarse(),
+            PMethod::NormalApproximation
+        );
+    }
 }

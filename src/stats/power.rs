@@ -27,7 +27,7 @@ use super::mann_whitney::mann_whitney;
 use super::nct::{nct_cdf, nct_sf};
 use super::ttest::{one_sample_t, paired_t, student_t};
 use super::wilcoxon::wilcoxon_signed_rank;
-use super::{Alternative, StatsError};
+use super::{Alternative, Decision, StatsError};
 
 /// Largest planned size per group that the searches consider (10⁷).
 /// A target that needs more is reported as [`StatsError::OutOfRange`].
@@ -608,7 +608,7 @@ pub fn simulate_power(
                 }
             }
         };
-        if super::Decision::at(p, alpha).rejected() {
+        if Decision::at(p, alpha).rejects() {
             hits += 1;
         }
     }

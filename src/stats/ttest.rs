@@ -15,7 +15,7 @@
 //! approximation to the df.
 
 use super::describe::{mean, variance};
-use super::dist::{t_quantile, t_sf};
+use super::dist::{log_t_sf, t_quantile, t_sf};
 use super::{ensure_finite, p_from_symmetric, Alternative, Interval, StatsError};
 
 /// Result of a t-test.
@@ -27,6 +27,9 @@ pub struct TTest {
     pub df: f64,
     /// p value for the requested alternative.
     pub p: f64,
+    /// log10 of `p` from the log of the t tail ([`super::dist::log_t_sf`]),
+    /// finite where `p` underflows to 0.
+    pub log10_p: f64,
     /// Mean difference first − second, or mean(x) − reference.
     pub estimate: f64,
     /// Standard error of the estimate.
@@ -71,6 +74,12 @@ pub(crate) fn from_estimate(
         return Err(StatsError::Overflow);
     }
     let p = p_from_symmetric(t, alt, |s| t_sf(s, df));
+    let ln_p = match alt {
+        Alternative::Greater => log_t_sf(t, df),
+        Alternative::Less => log_t_sf(-t, df),
+        Alternative::TwoSided => (std::f64::consts::LN_2 + log_t_sf(t.abs(), df)).min(0.0),
+    };
+    let log10_p = ln_p / std::f64::consts::LN_10;
     let interval = match alt {
         Alternative::TwoSided => {
             let q = t_quantile(0.5 * (1.0 + level), df);
@@ -101,6 +110,7 @@ pub(crate) fn from_estimate(
         t,
         df,
         p,
+        log10_p,
         estimate,
         se,
         interval,

@@ -72,12 +72,20 @@ def w_counts(n):
     return c
 
 
-def crit_exact(counts, tail):
+def crit_exact(counts, alt):
+    """Order statistic k of the exact interval: the number of leading
+    outcomes whose tail p rejects by the rule p < alpha (twice the tail
+    for two-sided), compared in exact rationals with alpha as the decimal
+    1 - LEVEL, so the interval excludes the null exactly when p < alpha."""
+    from fractions import Fraction
+
+    alpha = 1 - Fraction(str(LEVEL))
+    factor = 2 if alt == "two-sided" else 1
     total = sum(counts)
     k, acc = 0, 0
     for c in counts:
         acc += c
-        if acc / total <= tail:
+        if Fraction(factor * acc, total) < alpha:
             k += 1
         else:
             break
@@ -119,7 +127,7 @@ def mw_case(name, x, y, alt):
     diffs = np.sort(np.subtract.outer(x, y).ravel())
     tail = tail_of(alt)
     if exact:
-        k = crit_exact(mw_counts(n1, n2), tail)
+        k = crit_exact(mw_counts(n1, n2), alt)
     else:
         k = crit_normal(n1 * n2 / 2, math.sqrt(n1 * n2 * (n1 + n2 + 1) / 12), tail)
     return dict(
@@ -154,7 +162,7 @@ def w_case(name, d, alt):
     wa = walsh(d)
     tail = tail_of(alt)
     if exact:
-        k = crit_exact(w_counts(n), tail)
+        k = crit_exact(w_counts(n), alt)
     else:
         a = len(d)
         k = crit_normal(a * (a + 1) / 4, math.sqrt(a * (a + 1) * (2 * a + 1) / 24), tail)
