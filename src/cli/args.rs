@@ -24,10 +24,10 @@ pub(crate) enum Command {
         name: String,
         /// The design of the comparison.
         #[arg(long, value_enum, default_value = "independent")]
-        design: DesignArg,
+        design: crate::plan::Design,
         /// The test method [default: welch-t, paired-t or one-sample-t].
         #[arg(long, value_enum)]
-        method: Option<MethodArg>,
+        method: Option<crate::plan::Method>,
     },
     /// Check an analysis file without reading any data.
     Check {
@@ -114,7 +114,7 @@ pub(crate) enum Command {
     Power {
         /// The design of the comparison.
         #[arg(long, value_enum)]
-        design: DesignArg,
+        design: crate::plan::Design,
         /// Smallest effect of interest: Cohen's d (d_z for paired designs),
         /// as a size in the tested direction.
         #[arg(long)]
@@ -185,61 +185,6 @@ pub(crate) enum Command {
         #[arg(long, value_name = "FILE")]
         tsa_roots: Option<PathBuf>,
     },
-}
-
-/// Designs, as named on the command line.
-#[derive(Clone, Copy, Debug, clap::ValueEnum)]
-pub(crate) enum DesignArg {
-    /// Two independent groups.
-    Independent,
-    /// Two measurements on the same units.
-    Paired,
-    /// One sample against a reference value.
-    OneSample,
-}
-
-impl From<DesignArg> for crate::plan::Design {
-    fn from(d: DesignArg) -> Self {
-        match d {
-            DesignArg::Independent => crate::plan::Design::Independent,
-            DesignArg::Paired => crate::plan::Design::Paired,
-            DesignArg::OneSample => crate::plan::Design::OneSample,
-        }
-    }
-}
-
-/// Methods, as named in analysis files.
-#[derive(Clone, Copy, Debug, clap::ValueEnum)]
-pub(crate) enum MethodArg {
-    /// Student's t-test.
-    StudentT,
-    /// Welch's t-test.
-    WelchT,
-    /// Mann–Whitney U test.
-    MannWhitney,
-    /// Paired t-test.
-    PairedT,
-    /// Wilcoxon signed-rank test.
-    WilcoxonSignedRank,
-    /// One-sample t-test.
-    OneSampleT,
-    /// Preregistered checks choose the test.
-    Checked,
-}
-
-impl From<MethodArg> for crate::plan::Method {
-    fn from(m: MethodArg) -> Self {
-        use crate::plan::Method;
-        match m {
-            MethodArg::StudentT => Method::StudentT,
-            MethodArg::WelchT => Method::WelchT,
-            MethodArg::MannWhitney => Method::MannWhitney,
-            MethodArg::PairedT => Method::PairedT,
-            MethodArg::WilcoxonSignedRank => Method::WilcoxonSignedRank,
-            MethodArg::OneSampleT => Method::OneSampleT,
-            MethodArg::Checked => Method::Checked,
-        }
-    }
 }
 
 /// Alternatives, as named on the command line.

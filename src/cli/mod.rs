@@ -91,12 +91,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
             design,
             method,
         } => {
-            let path = crate::starter::write(
-                std::path::Path::new("."),
-                &name,
-                design.into(),
-                method.map(Into::into),
-            )?;
+            let path = crate::starter::write(std::path::Path::new("."), &name, design, method)?;
             say(&format!(
                 "wrote {}\nnext: read its comments and edit it, then `attest check {}`",
                 path.display(),
@@ -207,7 +202,7 @@ fn dispatch(cli: Cli) -> Result<i32> {
                 .help("e.g. --alpha 0.05"));
             }
             let q = crate::analysis::planning::Question {
-                design: design.into(),
+                design,
                 effect,
                 power,
                 n,

@@ -137,8 +137,9 @@ pub enum ExcludeKind {
     },
 }
 
-/// The study design of one hypothesis.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+/// The study design of one hypothesis (also a command-line value, named
+/// the same way).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, clap::ValueEnum)]
 #[serde(rename_all = "kebab-case")]
 pub enum Design {
     /// Two independent groups.
@@ -194,8 +195,9 @@ pub enum Comparison {
     },
 }
 
-/// Test methods a plan can name (trade names, kept as they are).
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+/// Test methods a plan can name (trade names, kept as they are; also a
+/// command-line value, named the same way).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, clap::ValueEnum)]
 #[serde(rename_all = "kebab-case")]
 pub enum Method {
     /// Student's t-test with pooled variance.
@@ -210,7 +212,7 @@ pub enum Method {
     WilcoxonSignedRank,
     /// One-sample t-test.
     OneSampleT,
-    /// The preregistered, assumption-gated choice.
+    /// Preregistered checks choose the test.
     Checked,
 }
 
