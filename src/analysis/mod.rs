@@ -16,6 +16,9 @@ use crate::stats::{self, describe, Alternative, StatsError};
 use rayon::prelude::*;
 
 pub(crate) mod planning;
+mod rule;
+
+use rule::{branch, choose};
 
 /// Figures draw at most this many points per set; larger sets are drawn
 /// from evenly spaced order statistics (so the quantiles stay exact).
@@ -343,40 +346,6 @@ fn checks(
         normality,
         spread,
         branch: None,
-    }
-}
-
-/// The branch of the `checked` rule the checks lead to.
-fn branch(design: Design, c: &Checks) -> Branch {
-    if c.normality.iter().any(|n| n.rejected == Some(true)) {
-        return Branch::NotNormal;
-    }
-    if c.normality.iter().any(|n| n.rejected.is_none()) {
-        return Branch::CheckNotRun;
-    }
-    if design == Design::Independent {
-        match c.spread.first().and_then(|s| s.rejected) {
-            Some(true) => Branch::NormalUnequalSpread,
-            Some(false) => Branch::NormalEqualSpread,
-            None => Branch::CheckNotRun,
-        }
-    } else {
-        Branch::NormalEqualSpread
-    }
-}
-
-/// The method actually run: the plan's, or the `checked` rule's choice.
-fn choose(planned: Method, design: Design, c: &Checks) -> Method {
-    if planned != Method::Checked {
-        return planned;
-    }
-    match (branch(design, c), design) {
-        (Branch::NotNormal, Design::Independent) => Method::MannWhitney,
-        (Branch::NotNormal, _) => Method::WilcoxonSignedRank,
-        (Branch::NormalEqualSpread, Design::Independent) => Method::StudentT,
-        (_, Design::Independent) => Method::WelchT,
-        (_, Design::Paired) => Method::PairedT,
-        (_, Design::OneSample) => Method::OneSampleT,
     }
 }
 
