@@ -183,3 +183,49 @@ fn every_inline_figure_has_a_rendered_size() {
         assert!(!text.contains("FAIL"), "{text}");
     }
 }
+
+/// The same inputs give the same bytes whatever the environment: two
+/// separate processes, one with one thread, the C locale and UTC, the other
+/// with seven threads, a decimal-comma locale and a time zone at +12:45,
+/// write identical output sets for every demo.
+#[test]
+fn outputs_do_not_depend_on_threads_locale_or_time_zone() {
+    let envs: [&[(&str, &str)]; 2] = [
+        &[("RAYON_NUM_THREADS", "1"), ("LC_ALL", "C"), ("TZ", "UTC")],
+        &[
+            ("RAYON_NUM_THREADS", "7"),
+            ("LC_ALL", "de_DE.UTF-8"),
+            ("LANG", "fr_FR.UTF-8"),
+            ("TZ", "Pacific/Chatham"),
+        ],
+    ];
+    let sets: Vec<_> = envs
+        .iter()
+        .map(|env| {
+            let c = demos();
+            for name in DEMOS {
+                let mut cmd = assert_cmd::Command::cargo_bin("attest").unwrap();
+                cmd.current_dir(c.path())
+                    .env("SOURCE_DATE_EPOCH", "1764547200")
+                    .env("NO_COLOR", "1")
+                    .args(["run", "--quiet", &format!("analyses/{name}.toml")]);
+                for (k, v) in env.iter() {
+                    cmd.env(k, v);
+                }
+                cmd.assert().success();
+            }
+            common::tree(&c.path().join("out"))
+        })
+        .collect();
+    assert!(sets[0].len() > 6 * 5, "too few files: {}", sets[0].len());
+    assert_eq!(
+        sets[0].keys().collect::<Vec<_>>(),
+        sets[1].keys().collect::<Vec<_>>()
+    );
+    for (name, bytes) in &sets[0] {
+        assert!(
+            sets[1][name] == *bytes,
+            "{name} differs between the two environments"
+        );
+    }
+}

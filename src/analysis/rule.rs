@@ -45,3 +45,117 @@ pub(super) fn choose(planned: Method, design: Design, c: &Checks) -> Method {
         (_, Design::OneSample) => Method::OneSampleT,
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::results::{NormalityCheck, SpreadCheck, SpreadMethod};
+
+    /// A check outcome: `Some(true)` rejected, `Some(false)` kept, `None`
+    /// could not run.
+    type Outcome = Option<bool>;
+
+    fn normality(r: Outcome) -> NormalityCheck {
+        NormalityCheck {
+            label: "values".into(),
+            n: if r.is_some() { 12 } else { 2 },
+            w: r.map(|_| 0.9),
+            p: r.map(|rej| if rej { 0.01 } else { 0.4 }),
+            rejected: r,
+            not_run: r.is_none().then(|| "too few values".into()),
+        }
+    }
+
+    fn spread(method: SpreadMethod, r: Outcome) -> SpreadCheck {
+        SpreadCheck {
+            method,
+            f: r.map(|_| 2.0),
+            df1: r.map(|_| 1.0),
+            df2: r.map(|_| 22.0),
+            p: r.map(|rej| if rej { 0.01 } else { 0.4 }),
+            rejected: r,
+            not_run: r.is_none().then(|| "too few values".into()),
+        }
+    }
+
+    fn checks(norm: &[Outcome], brown_forsythe: Option<Outcome>) -> Checks {
+        Checks {
+            check_alpha: 0.05,
+            normality: norm.iter().map(|&r| normality(r)).collect(),
+            // Levene is reported but never drives the rule: give it the
+            // opposite outcome to show it is ignored.
+            spread: brown_forsythe
+                .map(|r| {
+                    vec![
+                        spread(SpreadMethod::BrownForsythe, r),
+                        spread(SpreadMethod::Levene, r.map(|x| !x)),
+                    ]
+                })
+                .unwrap_or_default(),
+            branch: None,
+        }
+    }
+
+    const OUTCOMES: [Outcome; 3] = [Some(true), Some(false), None];
+
+    /// Every combination of the two groups' normality checks and the
+    /// spread check, against the rule as the README states it.
+    #[test]
+    fn independent_groups_every_combination() {
+        for a in OUTCOMES {
+            for b in OUTCOMES {
+                for s in OUTCOMES {
+                    let c = checks(&[a, b], Some(s));
+                    let (want_branch, want_method) = if a == Some(true) || b == Some(true) {
+                        (Branch::NotNormal, Method::MannWhitney)
+                    } else if a.is_none() || b.is_none() || s.is_none() {
+                        (Branch::CheckNotRun, Method::WelchT)
+                    } else if s == Some(true) {
+                        (Branch::NormalUnequalSpread, Method::WelchT)
+                    } else {
+                        (Branch::NormalEqualSpread, Method::StudentT)
+                    };
+                    let case = format!("normality {a:?}/{b:?}, spread {s:?}");
+                    assert_eq!(branch(Design::Independent, &c), want_branch, "{case}");
+                    assert_eq!(
+                        choose(Method::Checked, Design::Independent, &c),
+                        want_method,
+                        "{case}"
+                    );
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn paired_and_one_sample_follow_the_differences_alone() {
+        for (design, t) in [
+            (Design::Paired, Method::PairedT),
+            (Design::OneSample, Method::OneSampleT),
+        ] {
+            for n in OUTCOMES {
+                let c = checks(&[n], None);
+                let (want_branch, want_method) = match n {
+                    Some(true) => (Branch::NotNormal, Method::WilcoxonSignedRank),
+                    Some(false) => (Branch::NormalEqualSpread, t),
+                    None => (Branch::CheckNotRun, t),
+                };
+                assert_eq!(branch(design, &c), want_branch, "{design:?} {n:?}");
+                assert_eq!(choose(Method::Checked, design, &c), want_method);
+            }
+        }
+    }
+
+    #[test]
+    fn a_fixed_method_is_kept_whatever_the_checks_say() {
+        let rejecting = checks(&[Some(true), Some(true)], Some(Some(true)));
+        for m in [Method::StudentT, Method::WelchT, Method::MannWhitney] {
+            assert_eq!(choose(m, Design::Independent, &rejecting), m);
+        }
+        let rejecting = checks(&[Some(true)], None);
+        assert_eq!(
+            choose(Method::PairedT, Design::Paired, &rejecting),
+            Method::PairedT
+        );
+    }
+}
