@@ -38,7 +38,7 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
             "check the row counts in the data (missing values and exclusions reduce them), or revise the plan and record a deviation",
         )
     };
-    let labels = labels(h);
+    let labels = h.set_names();
     let Selected {
         mut first,
         mut second,
@@ -148,7 +148,7 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
         method_planned: h.method,
         method,
         alternative: h.alternative,
-        outcome_label: h.label.clone().unwrap_or_else(|| outcome_name(h)),
+        outcome_label: h.label.clone().unwrap_or_else(|| h.outcome_name()),
         units: h.units.clone(),
         labels,
         reference: match h.comparison {
@@ -201,22 +201,6 @@ pub(crate) fn adjust_all(plan: &Plan, results: &mut [HypothesisResult]) -> Corre
         r.decision = Decision::at(a, plan.alpha);
     }
     applied
-}
-
-fn outcome_name(h: &Hypothesis) -> String {
-    match (&h.outcome, &h.comparison) {
-        (Some(o), _) => o.clone(),
-        (None, Comparison::PairedColumns { first, second }) => format!("{first} − {second}"),
-        (None, _) => String::new(),
-    }
-}
-
-fn labels(h: &Hypothesis) -> [String; 2] {
-    match &h.comparison {
-        Comparison::Groups { levels, .. } | Comparison::PairedRows { levels, .. } => levels.clone(),
-        Comparison::PairedColumns { first, second } => [first.clone(), second.clone()],
-        Comparison::Reference { reference } => [outcome_name(h), format!("reference {reference}")],
-    }
 }
 
 fn summary(label: &str, x: &[f64], level: f64) -> std::result::Result<GroupSummary, StatsError> {

@@ -320,6 +320,31 @@ pub struct Hypothesis {
     pub planning: Option<Planning>,
 }
 
+impl Hypothesis {
+    /// The outcome's name: the outcome column, or `first − second` for a
+    /// paired wide layout, whose two columns are the outcome.
+    pub(crate) fn outcome_name(&self) -> String {
+        match (&self.outcome, &self.comparison) {
+            (Some(o), _) => o.clone(),
+            (None, Comparison::PairedColumns { first, second }) => format!("{first} − {second}"),
+            (None, _) => String::new(),
+        }
+    }
+
+    /// The names of the two sets compared, first and second: the levels,
+    /// the two columns, or the outcome and "reference" (the reference
+    /// value itself is a number, worded by the report).
+    pub(crate) fn set_names(&self) -> [String; 2] {
+        match &self.comparison {
+            Comparison::Groups { levels, .. } | Comparison::PairedRows { levels, .. } => {
+                levels.clone()
+            }
+            Comparison::PairedColumns { first, second } => [first.clone(), second.clone()],
+            Comparison::Reference { .. } => [self.outcome_name(), "reference".into()],
+        }
+    }
+}
+
 /// Default trimming proportion of the trimmed-mean methods (Yuen 1974;
 /// 20% is common practice).
 pub const DEFAULT_TRIM: f64 = 0.2;

@@ -371,7 +371,7 @@ fn hypothesis(
         robustness,
         figures,
         rows: rows(h),
-        row_groups: h.labels.clone(),
+        row_groups: set_labels(h),
     }
 }
 
@@ -674,6 +674,15 @@ fn provenance_meta(r: &Results) -> Vec<(&'static str, String)> {
     m
 }
 
+/// The names of the two sets as a reader sees them; the second set of a
+/// one-sample design is its reference value.
+fn set_labels(h: &HypothesisResult) -> [String; 2] {
+    match (h.design, h.reference) {
+        (Design::OneSample, Some(r)) => [h.labels[0].clone(), format!("reference {r}")],
+        _ => h.labels.clone(),
+    }
+}
+
 /// The figures of one hypothesis, in the order the report shows them,
 /// with every word drawn in them or said around them.
 fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
@@ -691,7 +700,7 @@ fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
         .map(|u| format!(" ({u})"))
         .unwrap_or_default();
     let axis = format!("{}{unit}", h.outcome_label);
-    let [a, b] = &h.labels;
+    let [a, b] = &set_labels(h);
     let set_labels: Vec<String> = h.plot.iter().map(|p| p.label.clone()).collect();
     let figure = |role: FigureRole,
                   title: &str,
