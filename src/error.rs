@@ -197,25 +197,22 @@ pub type Result<T, E = Failure> = std::result::Result<T, E>;
 /// The most characters of user text an error message quotes.
 pub(crate) const QUOTE_LIMIT: usize = 60;
 
-/// User text as an error message quotes it: control characters (line
-/// breaks, tabs, terminal escapes) written as `\n`, `\u{1b}` and so on so
-/// that nothing from the input can steer the terminal, and at most
+/// User text as an error message quotes it: escaped by [`clean`] (line
+/// breaks, tabs, terminal escapes and reordering characters written as
+/// `\n`, `\u{1b}` and so on, so nothing from the input can steer the
+/// terminal), and at most
 /// [`QUOTE_LIMIT`] characters, the rest replaced by "… (N more characters)".
 pub(crate) fn shown(text: &str) -> String {
-    let mut out = String::new();
-    for (count, ch) in text.chars().enumerate() {
-        if count == QUOTE_LIMIT {
-            let rest = text.chars().count() - count;
-            out.push_str(&format!("… ({rest} more characters)"));
-            return out;
-        }
-        if ch.is_control() {
-            out.extend(ch.escape_default());
-        } else {
-            out.push(ch);
-        }
+    let count = text.chars().count();
+    if count <= QUOTE_LIMIT {
+        return clean(text).into_owned();
     }
-    out
+    let head: String = text.chars().take(QUOTE_LIMIT).collect();
+    format!(
+        "{}… ({} more characters)",
+        clean(&head),
+        count - QUOTE_LIMIT
+    )
 }
 
 /// Caps a whole message (one that may embed user text the parser quoted)

@@ -38,7 +38,9 @@ pub struct Tost {
     pub interval: Interval,
 }
 
-fn check(low: f64, high: f64, alpha: f64) -> Result<(), StatsError> {
+/// Refuses bounds that are not finite or not in order, and an α outside
+/// (0, 0.5) (a 1 − 2α interval needs it); shared by every equivalence test.
+pub(super) fn check(low: f64, high: f64, alpha: f64) -> Result<(), StatsError> {
     if !low.is_finite() || !high.is_finite() {
         return Err(StatsError::NonFinite);
     }

@@ -45,22 +45,7 @@ pub struct RankTost {
     pub decision: Decision,
 }
 
-fn check(low: f64, high: f64, alpha: f64) -> Result<(), StatsError> {
-    if !low.is_finite() || !high.is_finite() {
-        return Err(StatsError::NonFinite);
-    }
-    if low >= high {
-        return Err(StatsError::BadParameter(
-            "the lower equivalence bound must be below the upper",
-        ));
-    }
-    if !(alpha > 0.0 && alpha < 0.5) {
-        return Err(StatsError::BadParameter(
-            "alpha must lie strictly between 0 and 0.5",
-        ));
-    }
-    Ok(())
-}
+use super::equivalence::check;
 
 /// TOST for the Hodges–Lehmann shift of `x` over `y` within `(low, high)`
 /// at `alpha`, with the rank conventions of `options`.
