@@ -14,8 +14,9 @@ use crate::plan::{Deviation, Plan};
 use crate::stats::describe::Descriptives;
 use crate::stats::equivalence::Tost;
 pub use crate::stats::multiplicity::Correction;
+use crate::stats::rank_tests::ZeroRule;
 pub use crate::stats::Decision;
-use crate::stats::{Alternative, PMethod};
+use crate::stats::{Alternative, PMethod, RankPMethod};
 use serde::{Deserialize, Serialize};
 
 /// Everything one `attest run` produced.
@@ -209,6 +210,21 @@ pub struct TestResult {
     pub effects: Vec<EffectSize>,
     /// Zero differences dropped (Wilcoxon signed-rank).
     pub zeros_dropped: Option<usize>,
+    /// The zero-difference rule applied (Wilcoxon signed-rank): `drop`
+    /// or `keep-in-ranking`.
+    pub zero_rule: Option<ZeroRule>,
+    /// Zero differences kept in the ranking (Wilcoxon signed-rank under
+    /// the `keep-in-ranking` rule).
+    pub zeros_ranked: Option<usize>,
+    /// How a rank test's p was obtained in detail: `exact`,
+    /// `exact-with-ties` or `normal-approximation` (null for t tests).
+    pub p_detail: Option<RankPMethod>,
+    /// Whether the continuity correction of ½ was applied to a rank
+    /// test's normal approximation (null for t tests and exact p).
+    pub continuity_correction: Option<bool>,
+    /// log10 of `p`, finite where `p` itself underflows to 0 (null when
+    /// it cannot be known, a t test whose p underflows).
+    pub log10_p: Option<f64>,
 }
 
 /// One Shapiro–Wilk check.

@@ -14,7 +14,8 @@ use attest::plan::{
 use attest::render::{render_plan, render_run};
 use attest::results::*;
 use attest::stats::multiplicity::Correction;
-use attest::stats::{Alternative, PMethod};
+use attest::stats::rank_tests::ZeroRule;
+use attest::stats::{Alternative, PMethod, RankPMethod};
 
 fn summary(label: &str, n: usize, mean: f64, sd: f64, q: [f64; 5]) -> GroupSummary {
     GroupSummary {
@@ -166,6 +167,11 @@ fn h1() -> HypothesisResult {
             },
         ],
         zeros_dropped: None,
+        zero_rule: None,
+        zeros_ranked: None,
+        p_detail: None,
+        continuity_correction: None,
+        log10_p: Some(0.0103f64.log10()),
     };
     HypothesisResult {
         id: "H1".into(),
@@ -255,6 +261,11 @@ fn h1() -> HypothesisResult {
                 ci_high: None,
             }],
             zeros_dropped: None,
+            zero_rule: None,
+            zeros_ranked: None,
+            p_detail: Some(RankPMethod::NormalApproximation),
+            continuity_correction: Some(true),
+            log10_p: Some(0.0188f64.log10()),
         }],
         equivalence: None,
         rows: RowFlow {
@@ -309,6 +320,11 @@ fn h2() -> HypothesisResult {
         estimate: estimate.clone(),
         effects: vec![effect.clone()],
         zeros_dropped: Some(2),
+        zero_rule: Some(ZeroRule::Drop),
+        zeros_ranked: Some(0),
+        p_detail: Some(RankPMethod::Exact),
+        continuity_correction: None,
+        log10_p: Some(0.214f64.log10()),
     };
     HypothesisResult {
         id: "H2".into(),

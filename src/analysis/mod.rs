@@ -68,6 +68,7 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
     let mut diffs = diffs;
     sort_values(&mut diffs);
     let d_once = std::sync::OnceLock::new();
+    let opts = h.conventions.rank_options();
     let run = |m: Method| {
         let data = Values {
             first: &first,
@@ -75,7 +76,7 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
             diffs: &diffs,
             reference,
         };
-        run_method(m, h.alternative, level, &data, &d_once)
+        run_method(m, h.alternative, level, &data, &opts, &d_once)
     };
     // With robustness checks on, every method that fits the design is
     // reported, so all of them run at once, beside the descriptives and the
@@ -357,6 +358,7 @@ fn run_method(
     alt: Alternative,
     level: f64,
     v: &Values,
+    opts: &stats::rank_tests::RankOptions,
     d_once: &std::sync::OnceLock<std::result::Result<stats::effect::Effect, StatsError>>,
 ) -> std::result::Result<TestResult, StatsError> {
     let Values {
@@ -366,8 +368,8 @@ fn run_method(
         reference,
     } = *v;
     use stats::{
-        effect as fx, mann_whitney::mann_whitney, rank_tests as rk, ttest as tt,
-        wilcoxon::wilcoxon_signed_rank,
+        effect as fx, mann_whitney::mann_whitney_with, rank_tests as rk, ttest as tt,
+        wilcoxon::wilcoxon_signed_rank_with,
     };
     let t_result = |name: Method, t: tt::TTest, effects: Vec<EffectSize>| TestResult {
         method: name,
@@ -386,6 +388,11 @@ fn run_method(
         },
         effects,
         zeros_dropped: None,
+        zero_rule: None,
+        zeros_ranked: None,
+        p_detail: None,
+        continuity_correction: None,
+        log10_p: (t.p > 0.0).then(|| t.p.log10()),
     };
     let rank_result = |name: Method, r: rk::RankTest, stat: StatisticKind, est: EstimateKind| {
         let mut effects = vec![EffectSize {
@@ -419,6 +426,12 @@ fn run_method(
             },
             effects,
             zeros_dropped: (name == Method::WilcoxonSignedRank).then_some(r.zeros_dropped),
+            zero_rule: (name == Method::WilcoxonSignedRank).then_some(opts.zeros),
+            zeros_ranked: (name == Method::WilcoxonSignedRank).then_some(r.zeros_ranked),
+            p_detail: Some(r.p_detail),
+            continuity_correction: (r.p_detail == stats::RankPMethod::NormalApproximation)
+                .then_some(opts.continuity),
+            log10_p: Some(r.log10_p),
         }
     };
     Ok(match m {
@@ -449,16 +462,15 @@ fn run_method(
         }
         Method::MannWhitney => rank_result(
             m,
-            mann_whitney(first, second, alt, level)?,
+            mann_whitney_with(first, second, alt, level, opts)?,
             StatisticKind::U,
             EstimateKind::HodgesLehmannShift,
         ),
         Method::WilcoxonSignedRank => {
+            // One-sample: the pseudo-median of outcome − reference, on the
+            // same scale as the one-sample t's mean difference.
             let shifted: Vec<f64> = diffs.iter().map(|d| d - reference).collect();
-            let mut r = wilcoxon_signed_rank(&shifted, alt, level)?;
-            r.estimate += reference;
-            r.interval.low = r.interval.low.map(|v| v + reference);
-            r.interval.high = r.interval.high.map(|v| v + reference);
+            let r = wilcoxon_signed_rank_with(&shifted, alt, level, opts)?;
             rank_result(
                 m,
                 r,

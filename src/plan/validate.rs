@@ -816,7 +816,7 @@ impl Checker<'_> {
             label: r.label.clone(),
             units: r.units.clone(),
             robustness: r.robustness.unwrap_or(true),
-            conventions: self.conventions(design, method, r)?,
+            conventions: self.conventions(design, r)?,
             planning: match &r.planning {
                 Some(p) => Some(self.planning(design, method, p)?),
                 None => None,
@@ -826,12 +826,7 @@ impl Checker<'_> {
 
     /// The rank and robust conventions of a hypothesis; a stated default
     /// is stored as absent (see [`Conventions`]).
-    fn conventions(
-        &self,
-        design: Design,
-        method: Method,
-        r: &RawHypothesis,
-    ) -> Result<Conventions> {
+    fn conventions(&self, design: Design, r: &RawHypothesis) -> Result<Conventions> {
         let zero_differences = match &r.zero_differences {
             None => None,
             Some(z) => {
@@ -859,64 +854,39 @@ impl Checker<'_> {
             .as_ref()
             .map(|c| *c.get_ref())
             .filter(|&c| !c);
-        let trim = match &r.trim {
-            None => None,
-            Some(t) => {
-                let v = t.get_ref().0;
-                if !(0.0..0.5).contains(&v) {
-                    return Err(self
-                        .at(
-                            t,
-                            format!("`trim` must be at least 0 and below 0.5, found {v}"),
-                        )
-                        .help(format!(
-                            "the proportion cut from each end; {DEFAULT_TRIM} is usual"
-                        )));
+        // `trim`, `permutations` and `rank_fallback` belong to the
+        // trimmed-mean and Brunner–Munzel methods, which no plan can name
+        // yet: a key that changes nothing is refused rather than ignored.
+        let unused = |key: &str, at: Option<std::ops::Range<usize>>| -> Result<()> {
+            match at {
+                None => Ok(()),
+                Some(span) => Err({
+                    let (l, c) = line_col(self.text, span.start);
+                    Failure::input(format!("`{key}` applies to no method attest runs")).at(
+                        self.path,
+                        l,
+                        Some(c),
+                    )
                 }
-                (v != DEFAULT_TRIM).then_some(v)
+                .help(format!(
+                    "remove `{key}`; the methods this version runs are {}",
+                    Method::ALL
+                        .iter()
+                        .map(|m| m.as_str())
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ))),
             }
         };
-        let permutations = match &r.permutations {
-            None => None,
-            Some(p) => {
-                let v = *p.get_ref();
-                let max = crate::stats::brunner_munzel::MAX_PERMUTATIONS as i64;
-                if !(1..=max).contains(&v) {
-                    return Err(self
-                        .at(
-                            p,
-                            format!("`permutations` must be between 1 and {max}, found {v}"),
-                        )
-                        .help(format!("{DEFAULT_PERMUTATIONS} is usual")));
-                }
-                (v as u64 != DEFAULT_PERMUTATIONS).then_some(v as u64)
-            }
-        };
-        let rank_fallback = match &r.rank_fallback {
-            None => None,
-            Some(f) => {
-                if method != Method::Checked || design != Design::Independent {
-                    return Err(self
-                        .at(f, "`rank_fallback` is used only by `method = \"checked\"` with independent groups")
-                        .help("remove it, or preregister the rank test itself as the method"));
-                }
-                let v = self.choice(
-                    f,
-                    "rank_fallback",
-                    &[
-                        ("mann-whitney", RankFallback::MannWhitney),
-                        ("brunner-munzel", RankFallback::BrunnerMunzel),
-                    ],
-                )?;
-                (v != RankFallback::default()).then_some(v)
-            }
-        };
+        unused("trim", r.trim.as_ref().map(|t| t.span()))?;
+        unused("permutations", r.permutations.as_ref().map(|t| t.span()))?;
+        unused("rank_fallback", r.rank_fallback.as_ref().map(|t| t.span()))?;
         Ok(Conventions {
             zero_differences,
             continuity_correction,
-            trim,
-            permutations,
-            rank_fallback,
+            trim: None,
+            permutations: None,
+            rank_fallback: None,
         })
     }
 
@@ -1263,17 +1233,16 @@ method = "welch-t"
             .replace("welch-t", "wilcoxon-signed-rank");
         let keep = paired.replace(
             "method =",
-            "zero_differences = \"keep-in-ranking\"\ncontinuity_correction = false\ntrim = 0.1\npermutations = 2000\nmethod =",
+            "zero_differences = \"keep-in-ranking\"\ncontinuity_correction = false\nmethod =",
         );
         let c = parse(Path::new("a.toml"), &keep).unwrap().plan.hypotheses[0].conventions;
         assert_eq!(c.zero_differences, Some(ZeroRule::KeepInRanking));
         assert_eq!(c.rank_options().zeros, ZeroRule::KeepInRanking);
         assert!(!c.rank_options().continuity);
-        assert_eq!((c.trim(), c.permutations()), (0.1, 2000));
         // Writing the defaults is the same plan as leaving them out.
         let defaults = paired.replace(
             "method =",
-            "zero_differences = \"drop\"\ncontinuity_correction = true\ntrim = 0.2\npermutations = 10000\nmethod =",
+            "zero_differences = \"drop\"\ncontinuity_correction = true\nmethod =",
         );
         let a = parse(Path::new("a.toml"), &defaults).unwrap().plan;
         let b = parse(Path::new("a.toml"), &paired).unwrap().plan;
@@ -1288,33 +1257,17 @@ method = "welch-t"
     fn conventions_are_checked() {
         let bad =
             |from: &str, to: &str| parse(Path::new("a.toml"), &GOOD.replace(from, to)).unwrap_err();
-        let e = bad("method =", "trim = 0.5\nmethod =");
-        assert_eq!(e.what, "`trim` must be at least 0 and below 0.5, found 0.5");
-        let e = bad("method =", "permutations = 0\nmethod =");
-        assert!(e.what.starts_with("`permutations` must be between 1 and"));
         let e = bad("method =", "zero_differences = \"drop\"\nmethod =");
         assert!(e.what.contains("paired and one-sample designs only"));
-        // rank_fallback needs `checked`; with it, a typo gets a suggestion.
-        let e = bad("method =", "rank_fallback = \"brunner-munzel\"\nmethod =");
-        assert!(e.what.contains("used only by `method = \"checked\"`"));
-        let checked = GOOD.replace("welch-t", "checked");
-        let e = parse(
-            Path::new("a.toml"),
-            &checked.replace("method =", "rank_fallback = \"brunner-munzell\"\nmethod ="),
-        )
-        .unwrap_err();
-        assert!(e
-            .help
-            .unwrap()
-            .starts_with("did you mean \"brunner-munzel\"?"));
-        let ok = parse(
-            Path::new("a.toml"),
-            &checked.replace("method =", "rank_fallback = \"brunner-munzel\"\nmethod ="),
-        )
-        .unwrap();
-        assert_eq!(
-            ok.plan.hypotheses[0].conventions.rank_fallback(),
-            RankFallback::BrunnerMunzel
-        );
+        // Keys of methods no plan can name yet are refused, not ignored.
+        for key in [
+            "trim = 0.1",
+            "permutations = 2000",
+            "rank_fallback = \"brunner-munzel\"",
+        ] {
+            let e = bad("method =", &format!("{key}\nmethod ="));
+            let name = key.split(' ').next().unwrap();
+            assert_eq!(e.what, format!("`{name}` applies to no method attest runs"));
+        }
     }
 }

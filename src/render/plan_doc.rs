@@ -13,6 +13,7 @@ use super::{md, page, render_template, PlanDoc};
 use crate::error::Result;
 use crate::lock::LockFile;
 use crate::plan::{Comparison, Design, ExcludeKind, Hypothesis, Method};
+use crate::stats::rank_tests::ZeroRule;
 use crate::stats::Alternative;
 use minijinja::{Environment, Value};
 
@@ -177,7 +178,34 @@ fn units(h: &Hypothesis) -> String {
         .unwrap_or_default()
 }
 
+/// The preregistered conventions of the rank tests, in words, for any
+/// hypothesis whose test is or may be a rank test.
+fn rank_rules(h: &Hypothesis) -> String {
+    if !(h.method.is_rank() || h.method == Method::Checked) {
+        return String::new();
+    }
+    let o = h.conventions.rank_options();
+    let zeros = match (h.design, o.zeros) {
+        (Design::Independent, _) => "",
+        (_, ZeroRule::Drop) => " Zero differences are dropped before ranking (Wilcoxon's rule).",
+        (_, ZeroRule::KeepInRanking) => {
+            " Zero differences are ranked with the others and then left out of the sum of positive ranks (Pratt's rule)."
+        }
+    };
+    let continuity = if o.continuity {
+        " Where the rank test's *p* comes from the normal approximation, it carries a continuity correction of ½."
+    } else {
+        " Where the rank test's *p* comes from the normal approximation, it carries no continuity correction."
+    };
+    format!("{zeros}{continuity}")
+}
+
 fn choice(h: &Hypothesis, check_alpha: f64) -> String {
+    let rules = rank_rules(h);
+    format!("{}{rules}", choice_words(h, check_alpha))
+}
+
+fn choice_words(h: &Hypothesis, check_alpha: f64) -> String {
     let id = escape(&h.id);
     let a = apa::bounded(check_alpha, 2);
     if h.method != Method::Checked {

@@ -83,6 +83,23 @@ pub(crate) fn p_clause(p: f64) -> String {
     }
 }
 
+/// The sentence for a p that underflows to 0 in double precision: it
+/// is below the smallest positive double (about 4.9 × 10⁻³²⁴), and, where
+/// the test computed it on the log scale, its base-10 logarithm to one
+/// decimal. A p printed as 0 would claim certainty no test gives.
+pub(crate) fn p_underflow(log10_p: Option<f64>) -> String {
+    let p = sym("p");
+    match log10_p.filter(|l| l.is_finite()) {
+        Some(l) => format!(
+            "{p} is smaller than the smallest number the computation can hold (about 10⁻³²⁴), so it is given on the log scale: log₁₀ {p} = {}.",
+            fixed(l, 1)
+        ),
+        None => format!(
+            "{p} is smaller than the smallest number the computation can hold (about 10⁻³²⁴); its size beyond that is not known."
+        ),
+    }
+}
+
 /// A statistical symbol in italics (Markdown emphasis).
 pub(crate) fn sym(symbol: &str) -> String {
     format!("*{symbol}*")

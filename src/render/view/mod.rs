@@ -21,7 +21,6 @@ use super::markdown::escape;
 use crate::results::{
     Branch, Decision, Design, HypothesisResult, LockState, Method, Results, SpreadMethod,
 };
-use crate::stats::PMethod;
 use minijinja::Value;
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -480,19 +479,14 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
         md(format!("Method used: {}{planned}.", method_name(h.method))),
         md(test_line),
     ];
-    if let Some(pm) = h.p_method {
-        let how = match pm {
-            PMethod::Exact => "is exact, from the permutation distribution of the statistic",
-            PMethod::NormalApproximation => {
-                "is from the normal approximation, corrected for ties and continuity"
-            }
-        };
+    if let Some(how) = sentence::p_origin(&h.test) {
         out.push(md(format!("{} {how}.", sym("p"))));
     }
-    if let Some(z) = h.test.zeros_dropped.filter(|z| *z > 0) {
-        out.push(md(format!(
-            "{z} zero difference(s) were dropped before ranking."
-        )));
+    if h.test.p == 0.0 {
+        out.push(md(apa::p_underflow(h.test.log10_p)));
+    }
+    if let Some(rule) = sentence::rank_conventions(&h.test) {
+        out.push(md(rule));
     }
     if let Some(name) = sentence::correction_method(r.correction_applied) {
         out.push(md(format!(

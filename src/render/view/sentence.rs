@@ -12,7 +12,8 @@ use crate::results::{
     HypothesisResult, Method, StatisticKind, TestResult,
 };
 use crate::stats::multiplicity::Correction;
-use crate::stats::Alternative;
+use crate::stats::rank_tests::ZeroRule;
+use crate::stats::{Alternative, PMethod, RankPMethod};
 
 /// The plain name of a method as a reader knows it.
 pub(crate) fn method_name(method: Method) -> String {
@@ -274,4 +275,54 @@ fn equivalence_sentence(h: &HypothesisResult, eq: &crate::results::EquivalenceRe
         apa::ci(eq.ci_level, Some(eq.ci_low), Some(eq.ci_high), two),
         t = sym("t"),
     )
+}
+
+/// How a test's p was obtained, as the clause after "*p*" (none for t
+/// tests, whose p is from the t distribution as the statistic says).
+pub(crate) fn p_origin(t: &TestResult) -> Option<&'static str> {
+    let detail = match (t.p_detail, t.p_method) {
+        (Some(d), _) => d,
+        (None, Some(PMethod::Exact)) => RankPMethod::Exact,
+        (None, Some(PMethod::NormalApproximation)) => RankPMethod::NormalApproximation,
+        (None, None) => return None,
+    };
+    Some(match (detail, t.continuity_correction) {
+        (RankPMethod::Exact, _) => "is exact, from the permutation distribution of the statistic",
+        (RankPMethod::ExactWithTies, _) => {
+            "is exact, from the permutation distribution of the statistic given the ties"
+        }
+        (RankPMethod::NormalApproximation, Some(false)) => {
+            "is from the normal approximation, corrected for ties, without a continuity correction (as the plan states)"
+        }
+        (RankPMethod::NormalApproximation, _) => {
+            "is from the normal approximation, corrected for ties and continuity"
+        }
+    })
+}
+
+/// The zero-difference rule of a signed-rank test, in words, with the
+/// count it affected (none for other tests).
+pub(crate) fn rank_conventions(t: &TestResult) -> Option<String> {
+    match t.method {
+        Method::WilcoxonSignedRank => {}
+        Method::StudentT
+        | Method::WelchT
+        | Method::PairedT
+        | Method::OneSampleT
+        | Method::MannWhitney
+        | Method::Checked => return None,
+    }
+    let dropped = t.zeros_dropped.unwrap_or(0);
+    let ranked = t.zeros_ranked.unwrap_or(0);
+    Some(match t.zero_rule.unwrap_or_default() {
+        ZeroRule::Drop if dropped > 0 => format!(
+            "Zero differences are dropped before ranking (Wilcoxon's rule); {dropped} dropped."
+        ),
+        ZeroRule::Drop => {
+            "Zero differences are dropped before ranking (Wilcoxon's rule); there were none.".to_string()
+        }
+        ZeroRule::KeepInRanking => format!(
+            "Zero differences are ranked with the others and then left out of the sum of positive ranks (Pratt's rule, as the plan states); {ranked} ranked."
+        ),
+    })
 }
