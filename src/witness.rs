@@ -325,8 +325,8 @@ pub fn witness(lock_path: &Path, lock_bytes: &[u8], locked_at: &str, data_path: 
 
 /// Whether `s` has the shape `YYYY-MM-DDTHH:MM:SSZ`, so that comparing it
 /// as text compares instants.
-fn is_utc_stamp(s: &str) -> bool {
-    let b = s.as_bytes();
+fn is_utc_stamp(text: &str) -> bool {
+    let b = text.as_bytes();
     b.len() == 20
         && b.iter().enumerate().all(|(i, c)| match i {
             4 | 7 => *c == b'-',

@@ -497,14 +497,14 @@ fn unquote(s: &str) -> &str {
 
 /// An OpenSSH pattern list (`a,b*,!c`): matches when some pattern matches
 /// and no negated one does.
-fn pattern_list_matches(list: &[String], s: &str) -> bool {
+fn pattern_list_matches(list: &[String], name: &str) -> bool {
     let mut hit = false;
     for p in list {
         if let Some(neg) = p.strip_prefix('!') {
-            if glob(neg.as_bytes(), s.as_bytes()) {
+            if glob(neg.as_bytes(), name.as_bytes()) {
                 return false;
             }
-        } else if glob(p.as_bytes(), s.as_bytes()) {
+        } else if glob(p.as_bytes(), name.as_bytes()) {
             hit = true;
         }
     }

@@ -679,12 +679,12 @@ pub(crate) fn days_from_civil(y: i64, m: i64, d: i64) -> i64 {
 }
 
 /// `YYYY-MM-DDTHH:MM:SSZ` as epoch seconds.
-fn parse_rfc3339(s: &str) -> Option<i64> {
-    let b = s.as_bytes();
+fn parse_rfc3339(text: &str) -> Option<i64> {
+    let b = text.as_bytes();
     if b.len() != 20 || b[4] != b'-' || b[7] != b'-' || b[10] != b'T' || b[19] != b'Z' {
         return None;
     }
-    let n = |a: usize, z: usize| s.get(a..z)?.parse::<i64>().ok();
+    let n = |a: usize, z: usize| text.get(a..z)?.parse::<i64>().ok();
     Some(
         days_from_civil(n(0, 4)?, n(5, 7)?, n(8, 10)?) * 86_400
             + n(11, 13)? * 3600

@@ -236,11 +236,12 @@ pub fn rank_sum_conditional(
     let offset = (m * (m + 1)) as u64; // 2·R1 − m(m+1) = 2·U1
     let top = 2 * m * n;
     let mut counts = vec![0u128; top + 1];
-    for (s, &c) in table[k * width..].iter().enumerate() {
+    for (score, &c) in table[k * width..].iter().enumerate() {
         if c == 0 {
             continue;
         }
-        let s1 = if k == m { s as u64 } else { total2 - s as u64 };
+        let score = score as u64;
+        let s1 = if k == m { score } else { total2 - score };
         let u2 = (s1 - offset) as usize;
         counts[u2] += c;
     }

@@ -98,8 +98,8 @@ impl Default for RankOptions {
 /// The critical counts `(k_low, k_high)` count the order statistics whose
 /// tail p (by the same conversion) rejects by [`Decision::at`] at
 /// α = [`alpha_of_level`], so that the interval excludes the null exactly
-/// when p < α: the lower end from the upper tail of the statistic (a
-/// large statistic is what puts the shift above the lower end), the
+/// when p < α: the lower end from the upper tail of the statistic, since
+/// a large statistic is what puts the shift above the lower end; the
 /// upper end from the lower tail. Without ties the two are equal.
 pub(crate) fn exact_p(
     d: &ExactDistribution,

@@ -57,7 +57,7 @@ def fl(a):
     return [float(v) for v in a]
 
 
-def bm_stat(x, y):
+def bm_t_of(x, y):
     """attest's orientation: minus scipy's statistic; nan (0/0) -> 0."""
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
@@ -70,13 +70,13 @@ def bm_stat(x, y):
 def bm_permutation(x, y, alt):
     pooled = list(x) + list(y)
     n1 = len(x)
-    obs = bm_stat(x, y)
+    obs = bm_t_of(x, y)
     hits = total = 0
     for combo in itertools.combinations(range(len(pooled)), n1):
         chosen = set(combo)
         a = [pooled[i] for i in combo]
         b = [pooled[i] for i in range(len(pooled)) if i not in chosen]
-        t = bm_stat(a, b)
+        t = bm_t_of(a, b)
         # Relative slack 1e-9 so that splits equal in exact arithmetic but
         # not in rounding count as equally extreme (attest's rule).
         slack = 1e-9 * abs(obs) if math.isfinite(obs) else 0.0
