@@ -14,6 +14,7 @@ use crate::output::MANIFEST;
 use crate::pipeline;
 use crate::plan::canonical::{plan_hash, sha256_hex};
 use crate::plan::validate;
+use crate::render::view::provenance::short;
 use crate::results::{LockState, Results};
 use crate::witness::Witness;
 use std::collections::{BTreeMap, BTreeSet};
@@ -553,8 +554,4 @@ fn lock_items(analysis: &Path, recorded: &Results, plan_hash_now: &str) -> Resul
 
 fn describe_witness(w: &Witness) -> String {
     crate::render::view::provenance::witness_line(w)
-}
-
-fn short(h: &str) -> &str {
-    h.get(..12).unwrap_or(h)
 }

@@ -11,18 +11,13 @@ use attest::stats::power::{
 use attest::stats::Alternative;
 use serde_json::Value;
 
+mod common;
+use common::fixture::alt;
+
 const SRC: &str = "scipy 1.17.1 via tests/reference/gen_power.py";
 
 fn fixture() -> Value {
     serde_json::from_str(include_str!("reference/power.json")).expect("fixture parses")
-}
-
-fn alt(v: &Value) -> Alternative {
-    match v.as_str().unwrap() {
-        "two-sided" => Alternative::TwoSided,
-        "greater" => Alternative::Greater,
-        _ => Alternative::Less,
-    }
 }
 
 fn design(v: &Value) -> PowerDesign {

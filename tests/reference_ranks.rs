@@ -11,6 +11,9 @@ use attest::stats::wilcoxon::wilcoxon_signed_rank_with;
 use attest::stats::{Alternative, PMethod, RankPMethod};
 use serde_json::Value;
 
+mod common;
+use common::fixture::{alt, f, vec};
+
 const SOURCE: &str = "scipy 1.17.1 via tests/reference/gen_ranks.py";
 
 /// attest 1's rule, which gen_ranks.py mirrors: exact only without ties
@@ -27,22 +30,6 @@ fn untied_exact_only() -> RankOptions {
 fn load() -> Value {
     let text = include_str!("reference/ranks.json");
     serde_json::from_str(text).expect("ranks.json parses")
-}
-
-fn f(v: &Value) -> f64 {
-    v.as_f64().expect("number")
-}
-
-fn vec(v: &Value) -> Vec<f64> {
-    v.as_array().expect("array").iter().map(f).collect()
-}
-
-fn alt(v: &Value) -> Alternative {
-    match v.as_str().expect("alternative") {
-        "two-sided" => Alternative::TwoSided,
-        "greater" => Alternative::Greater,
-        _ => Alternative::Less,
-    }
 }
 
 fn close(got: f64, want: f64, rel: f64, what: &str) {

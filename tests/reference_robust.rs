@@ -11,30 +11,15 @@ use attest::stats::brunner_munzel::{brunner_munzel, brunner_munzel_permutation, 
 use attest::stats::equivalence_rank::{tost_hodges_lehmann, tost_prob_superiority};
 use attest::stats::rank_tests::RankOptions;
 use attest::stats::yuen::{normal_winsorised_sd, trimmed_t_one_sample, yuen};
-use attest::stats::Alternative;
 use serde_json::Value;
+
+mod common;
+use common::fixture::{alt, f, vec};
 
 const SOURCE: &str = "scipy 1.17.1 / statsmodels 0.15.0 via tests/reference/gen_robust.py";
 
 fn load() -> Value {
     serde_json::from_str(include_str!("reference/robust.json")).expect("robust.json parses")
-}
-
-fn f(v: &Value) -> f64 {
-    v.as_f64().expect("number")
-}
-
-fn vec(v: &Value) -> Vec<f64> {
-    v.as_array().expect("array").iter().map(f).collect()
-}
-
-fn alt(v: &Value) -> Alternative {
-    match v.as_str().expect("alternative") {
-        "two-sided" => Alternative::TwoSided,
-        "greater" => Alternative::Greater,
-        "less" => Alternative::Less,
-        other => panic!("unknown alternative {other}"),
-    }
 }
 
 fn close(got: f64, want: f64, rel: f64, what: &str) {

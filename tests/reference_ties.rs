@@ -11,27 +11,13 @@ use attest::stats::wilcoxon::wilcoxon_signed_rank_with;
 use attest::stats::{Alternative, RankPMethod};
 use serde_json::Value;
 
+mod common;
+use common::fixture::{alt, vec};
+
 const SOURCE: &str = "brute-force enumeration, tests/reference/gen_ties.py";
 
 fn load() -> Value {
     serde_json::from_str(include_str!("reference/ties.json")).expect("ties.json parses")
-}
-
-fn vec(v: &Value) -> Vec<f64> {
-    v.as_array()
-        .expect("array")
-        .iter()
-        .map(|x| x.as_f64().expect("number"))
-        .collect()
-}
-
-fn alt(v: &Value) -> Alternative {
-    match v.as_str().expect("alternative") {
-        "two-sided" => Alternative::TwoSided,
-        "greater" => Alternative::Greater,
-        "less" => Alternative::Less,
-        other => panic!("unknown alternative {other}"),
-    }
 }
 
 fn method(v: &Value) -> RankPMethod {

@@ -12,6 +12,9 @@ use attest::stats::ttest::{one_sample_t, paired_t, student_t, welch_t, TTest};
 use attest::stats::Alternative;
 use serde_json::Value;
 
+mod common;
+use common::fixture::alt;
+
 const SRC: &str = "scipy 1.17.1 via tests/reference/gen_ttests.py";
 
 fn fixture() -> Value {
@@ -24,14 +27,6 @@ fn vec_of(v: &Value) -> Vec<f64> {
         .iter()
         .map(|x| x.as_f64().unwrap())
         .collect()
-}
-
-fn alt(v: &Value) -> Alternative {
-    match v.as_str().unwrap() {
-        "two-sided" => Alternative::TwoSided,
-        "greater" => Alternative::Greater,
-        _ => Alternative::Less,
-    }
 }
 
 /// Relative closeness, with an absolute floor for values that are zero.

@@ -2,6 +2,8 @@
 //! real `attest` binary run inside it, and tolerant float comparison.
 #![allow(dead_code)]
 
+pub mod fixture;
+
 use assert_cmd::Command;
 use std::path::{Path, PathBuf};
 

@@ -8,7 +8,8 @@
 use crate::results::Results;
 use crate::witness::{Flag, Signature, Witness};
 
-fn short(h: &str) -> &str {
+/// The first 12 characters of a hash or commit id, as every output shows it.
+pub(crate) fn short(h: &str) -> &str {
     h.get(..12).unwrap_or(h)
 }
 
