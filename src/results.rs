@@ -13,6 +13,7 @@ pub use crate::plan::{Design, Method};
 use crate::plan::{Deviation, Plan};
 use crate::stats::describe::Descriptives;
 use crate::stats::equivalence::Tost;
+use crate::stats::equivalence_rank::RankTost;
 pub use crate::stats::multiplicity::Correction;
 use crate::stats::rank_tests::ZeroRule;
 pub use crate::stats::Decision;
@@ -194,8 +195,10 @@ pub struct TestResult {
     pub method: Method,
     /// Which statistic: `t`, `U` or `W+`.
     pub statistic_name: StatisticKind,
-    /// The statistic (t; U of the first group; W+ = sum of positive ranks).
-    pub statistic: f64,
+    /// The statistic (t; U of the first group; W+ = sum of positive
+    /// ranks); null when it is undefined (Brunner–Munzel when neither
+    /// group's placements vary, as when the groups do not overlap).
+    pub statistic: Option<f64>,
     /// Degrees of freedom (null for rank tests).
     pub df: Option<f64>,
     /// Standardised statistic of a rank test's normal approximation.
@@ -225,6 +228,14 @@ pub struct TestResult {
     /// log10 of `p`, finite where `p` itself underflows to 0 (null when
     /// it cannot be known, a t test whose p underflows).
     pub log10_p: Option<f64>,
+    /// The trimming proportion cut from each end (trimmed-mean t only).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub trim: Option<f64>,
+    /// Splits of the pooled sample behind a permutation p: all of them
+    /// (`p_detail` `studentised-permutation`) or the number drawn
+    /// (`studentised-permutation-sampled`); Brunner–Munzel only.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub permutations: Option<u64>,
 }
 
 /// One Shapiro–Wilk check.
@@ -291,20 +302,25 @@ pub enum Branch {
     CheckNotRun,
 }
 
-/// Two one-sided tests for equivalence (the engine's [`Tost`] with its
-/// bounds, in the shape `results.json` has always had).
+/// Two one-sided tests for equivalence: on the mean difference (the
+/// engine's [`Tost`]), the trimmed mean difference, the Hodges–Lehmann
+/// shift or pseudo-median, or the probability of superiority.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct EquivalenceResult {
-    /// Lower bound in raw units.
+    /// What the bounds are on: the estimate of the preregistered method.
+    pub on: EstimateKind,
+    /// Lower bound (raw units; a probability for the probability of
+    /// superiority).
     pub low: f64,
-    /// Upper bound in raw units.
+    /// Upper bound.
     pub high: f64,
-    /// t against the lower bound.
-    pub t_lower: f64,
+    /// t against the lower bound (null for the rank-shift tests, whose
+    /// statistic is U or W+ on shifted data).
+    pub t_lower: Option<f64>,
     /// t against the upper bound.
-    pub t_upper: f64,
-    /// Degrees of freedom.
-    pub df: f64,
+    pub t_upper: Option<f64>,
+    /// Degrees of freedom (null for the rank-shift tests).
+    pub df: Option<f64>,
     /// p of the test against the lower bound.
     pub p_lower: f64,
     /// p of the test against the upper bound.
@@ -394,8 +410,9 @@ pub struct HypothesisResult {
     /// Descriptives: the two groups (independent), the two conditions and
     /// the differences (paired), or the sample (one-sample).
     pub groups: Vec<GroupSummary>,
-    /// The preregistered test's statistic (named by `test.statistic_name`).
-    pub statistic: f64,
+    /// The preregistered test's statistic (named by `test.statistic_name`;
+    /// null when undefined, see [`TestResult::statistic`]).
+    pub statistic: Option<f64>,
     /// Degrees of freedom of the preregistered test (null for rank tests).
     pub df: Option<f64>,
     /// p of the preregistered test for its sidedness.
@@ -444,14 +461,37 @@ pub struct PlanningOutcome {
 }
 
 impl EquivalenceResult {
-    /// The result of [`Tost`] at level α (its interval is the 1 − 2α one).
-    pub(crate) fn from_tost(t: &Tost, alpha: f64) -> Self {
+    /// The result of [`Tost`] at level α (its interval is the 1 − 2α one),
+    /// on the estimate `on` (mean or trimmed mean difference).
+    pub(crate) fn from_tost(t: &Tost, alpha: f64, on: EstimateKind) -> Self {
         EquivalenceResult {
+            on,
             low: t.low,
             high: t.high,
-            t_lower: t.t_lower,
-            t_upper: t.t_upper,
-            df: t.df,
+            t_lower: Some(t.t_lower),
+            t_upper: Some(t.t_upper),
+            df: Some(t.df),
+            p_lower: t.p_lower,
+            p_upper: t.p_upper,
+            p: t.p,
+            ci_low: t.interval.low.unwrap_or(f64::NEG_INFINITY),
+            ci_high: t.interval.high.unwrap_or(f64::INFINITY),
+            ci_level: 1.0 - 2.0 * alpha,
+        }
+    }
+
+    /// The result of a rank [`RankTost`] at level α on the estimate `on`
+    /// (Hodges–Lehmann shift or pseudo-median, or the probability of
+    /// superiority, which also carries its t statistics and df).
+    pub(crate) fn from_rank_tost(t: &RankTost, alpha: f64, on: EstimateKind) -> Self {
+        let t_stats = t.t;
+        EquivalenceResult {
+            on,
+            low: t.low,
+            high: t.high,
+            t_lower: t_stats.map(|(s, _)| s[0]),
+            t_upper: t_stats.map(|(s, _)| s[1]),
+            df: t_stats.map(|(_, df)| df),
             p_lower: t.p_lower,
             p_upper: t.p_upper,
             p: t.p,
@@ -474,6 +514,35 @@ pub enum EstimateKind {
     /// The Hodges–Lehmann pseudo-median (Wilcoxon signed-rank).
     #[serde(rename = "Hodges–Lehmann estimate")]
     HodgesLehmannEstimate,
+    /// Difference of trimmed means (Yuen), or a trimmed mean minus the
+    /// reference value (one sample).
+    #[serde(rename = "trimmed mean difference")]
+    TrimmedMeanDifference,
+    /// The trimmed mean of the paired differences (not the difference of
+    /// the two trimmed means).
+    #[serde(rename = "trimmed mean of the differences")]
+    TrimmedMeanOfDifferences,
+    /// The probability of superiority θ = P(first > second) + ½ P(tie)
+    /// (Brunner–Munzel), ½ under the null.
+    #[serde(rename = "probability of superiority")]
+    ProbabilityOfSuperiority,
+}
+
+impl EstimateKind {
+    /// The estimate's value under the null: ½ for the probability of
+    /// superiority, 0 for every difference.
+    pub fn null_value(self) -> f64 {
+        match self {
+            EstimateKind::ProbabilityOfSuperiority => 0.5,
+            _ => 0.0,
+        }
+    }
+
+    /// Whether the estimate is in the outcome's units (a difference)
+    /// rather than a probability.
+    pub fn in_outcome_units(self) -> bool {
+        self != EstimateKind::ProbabilityOfSuperiority
+    }
 }
 
 /// Which effect size.
@@ -494,6 +563,11 @@ pub enum EffectKind {
     /// The probability of superiority, P(X > Y) + ½ P(X = Y).
     #[serde(rename = "probability-of-superiority")]
     ProbabilityOfSuperiority,
+    /// The robust standardised difference d_R of Algina, Keselman &
+    /// Penfield (2005): trimmed means over the winsorised SD, rescaled to
+    /// estimate Cohen's d under normality.
+    #[serde(rename = "robust-d")]
+    RobustD,
 }
 
 /// Which test statistic.

@@ -136,23 +136,40 @@ const DEVIATIONS: &str = r##"
 
 fn text(name: &str, design: Design, method: Method) -> String {
     let m = method.as_str();
-    let t_method = matches!(
-        method,
-        Method::StudentT | Method::WelchT | Method::PairedT | Method::OneSampleT
-    );
-    let equivalence = |bounds: &str, unit: &str| {
-        if t_method {
-            format!(
-                r##"
+    // The equivalence example and the conventions each method can state.
+    let equivalence = |bounds: &str, unit: &str| match method {
+        Method::Checked => String::new(),
+        Method::BrunnerMunzel => r##"
+# Optional: to show that neither group tends to have the larger values (an
+# equivalence test on the probability of superiority, two one-sided tests),
+# give bounds around 1/2 and set `alternative = "two-sided"` (or leave it out):
+# equivalence = [0.4, 0.6]
+"##
+        .to_string(),
+        _ => format!(
+            r##"
 # Optional: to show that the difference is too small to matter (an
 # equivalence test, two one-sided tests), give the smallest differences that
 # matter, in {unit}, and set `alternative = "two-sided"` (or leave it out):
 # equivalence = {bounds}
 "##
-            )
-        } else {
-            String::new()
-        }
+        ),
+    } + match (method, design) {
+        (Method::TrimmedT, _) => r##"
+# Optional: the share cut from each end before the means are taken.
+# trim = 0.2
+"##,
+        (Method::BrunnerMunzel, _) => r##"
+# Optional: p comes from splits of the pooled values when a group is small;
+# how many splits at most (all of them when there are fewer).
+# permutations = 10000
+"##,
+        (Method::Checked, Design::Independent) => r##"
+# Optional: the rank test the checks fall back to: "mann-whitney" (default)
+# or "brunner-munzel", which does not assume equal spreads.
+# rank_fallback = "mann-whitney"
+"##,
+        _ => "",
     };
     let (data, label, units, hypothesis) = match design {
         Design::Independent => (
@@ -185,7 +202,9 @@ alternative = "greater"
 
 # How the groups are compared. welch-t does not assume equal spread and is a
 # sound default; student-t assumes equal spread; mann-whitney compares
-# ranks; checked lets preregistered checks choose.
+# ranks; brunner-munzel compares ranks without assuming equal spread;
+# trimmed-t compares trimmed means (heavy tails, outliers); checked lets
+# preregistered checks choose.
 method = "{m}"
 {eq}"##,
                 eq = equivalence("[-20, 20]", "ml")
@@ -230,7 +249,8 @@ second = "stress_before"
 alternative = "less"
 
 # paired-t compares the mean difference; wilcoxon-signed-rank uses ranks;
-# checked lets a preregistered normality check choose.
+# trimmed-t compares the trimmed mean of the differences; checked lets a
+# preregistered normality check choose.
 method = "{m}"
 {eq}"##,
                 eq = equivalence("[-0.5, 0.5]", "rating points")
@@ -260,8 +280,9 @@ reference = 36
 # or "two-sided".
 alternative = "two-sided"
 
-# one-sample-t compares the mean; wilcoxon-signed-rank uses ranks; checked
-# lets a preregistered normality check choose.
+# one-sample-t compares the mean; wilcoxon-signed-rank uses ranks;
+# trimmed-t compares the trimmed mean; checked lets a preregistered
+# normality check choose.
 method = "{m}"
 {eq}"##,
                 eq = equivalence("[-0.5, 0.5]", "g")
@@ -444,8 +465,21 @@ mod tests {
                 let t = text("trial", design, method);
                 let f = crate::plan::validate::parse(Path::new("trial.toml"), &t);
                 assert!(f.is_ok(), "{design:?}/{method:?}: {:?}", f.err());
-                // The equivalence example is offered only for t methods, and
-                // uncommented (with a two-sided alternative) it parses.
+                // The equivalence example is offered for every fixed method,
+                // and the conventions each method can state; uncommented
+                // (with a two-sided alternative) they parse.
+                assert_eq!(
+                    t.contains("# equivalence ="),
+                    method != crate::plan::Method::Checked,
+                    "{design:?}/{method:?}"
+                );
+                let conventions = uncomment(&t, &["trim", "permutations", "rank_fallback"]);
+                let f = crate::plan::validate::parse(Path::new("trial.toml"), &conventions);
+                assert!(
+                    f.is_ok(),
+                    "{design:?}/{method:?} conventions: {:?}",
+                    f.err()
+                );
                 if t.contains("# equivalence =") {
                     let eq = uncomment(&t, &["equivalence"])
                         .replace("alternative = \"greater\"", "alternative = \"two-sided\"")

@@ -4,13 +4,19 @@
 //! statsmodels rank_compare_2indep (interval for θ), permutation p by
 //! enumerating every split with scipy's statistic, scipy.stats.ttest_ind
 //! with trim, scipy's trim_mean/winsorize for the one-sample form,
-//! statsmodels tost_prob_superior and scipy's exact mannwhitneyu on
-//! shifted data for the two equivalence tests.
+//! statsmodels tost_prob_superior, scipy's exact mannwhitneyu and
+//! wilcoxon on shifted data for the rank equivalence tests, and
+//! scipy.stats.ttest_ind(trim=…) on shifted data (two groups) or the
+//! trimmed pieces shifted by each bound (one sample) for equivalence on
+//! trimmed means.
 
 use attest::stats::brunner_munzel::{brunner_munzel, brunner_munzel_permutation, BmInference};
-use attest::stats::equivalence_rank::{tost_hodges_lehmann, tost_prob_superiority};
+use attest::stats::equivalence_rank::{
+    tost_hodges_lehmann, tost_prob_superiority, tost_signed_rank,
+};
 use attest::stats::rank_tests::RankOptions;
-use attest::stats::yuen::{normal_winsorised_sd, trimmed_t_one_sample, yuen};
+use attest::stats::yuen::{normal_winsorised_sd, tost_trimmed, trimmed_t_one_sample, yuen};
+use attest::stats::Alternative;
 use serde_json::Value;
 
 mod common;
@@ -257,5 +263,102 @@ fn pratt_normal_approximation_matches_scipy() {
         let t = wilcoxon_signed_rank_with(&vec(&c["d"]), alt(&c["alternative"]), 0.95, &options)
             .unwrap_or_else(|e| panic!("{name}: {e}"));
         close(t.p, f(&c["p"]), 1e-10, &format!("p {name}"));
+    }
+}
+
+#[test]
+fn signed_rank_tost_matches_scipy_exact() {
+    let doc = load();
+    let cases = doc["tost_signed_rank"].as_array().unwrap();
+    assert!(cases.len() >= 3);
+    for c in cases {
+        let name = c["name"].to_string();
+        let t = tost_signed_rank(
+            &vec(&c["d"]),
+            f(&c["low"]),
+            f(&c["high"]),
+            0.05,
+            &RankOptions::default(),
+        )
+        .unwrap_or_else(|e| panic!("{name}: {e}"));
+        close(
+            t.p_lower,
+            f(&c["p_lower"]),
+            1e-10,
+            &format!("p lower {name}"),
+        );
+        close(
+            t.p_upper,
+            f(&c["p_upper"]),
+            1e-10,
+            &format!("p upper {name}"),
+        );
+        close(t.p, f(&c["p"]), 1e-10, &format!("p {name}"));
+    }
+}
+
+/// One trimmed-mean TOST case against its reference: t, df and p of both
+/// one-sided tests.
+fn check_trimmed_tost(t: &attest::stats::equivalence::Tost, c: &Value, name: &str) {
+    close(
+        t.t_lower,
+        f(&c["t_lower"]),
+        1e-10,
+        &format!("t lower {name}"),
+    );
+    close(
+        t.t_upper,
+        f(&c["t_upper"]),
+        1e-10,
+        &format!("t upper {name}"),
+    );
+    close(t.df, f(&c["df"]), 1e-10, &format!("df {name}"));
+    close(
+        t.p_lower,
+        f(&c["p_lower"]),
+        1e-9,
+        &format!("p lower {name}"),
+    );
+    close(
+        t.p_upper,
+        f(&c["p_upper"]),
+        1e-9,
+        &format!("p upper {name}"),
+    );
+    close(t.p, f(&c["p"]), 1e-9, &format!("p {name}"));
+}
+
+#[test]
+fn trimmed_tost_matches_scipy() {
+    let doc = load();
+    let two = doc["tost_trimmed_two"].as_array().unwrap();
+    assert!(two.len() >= 3);
+    for c in two {
+        let name = c["name"].to_string();
+        let r = yuen(
+            &vec(&c["x"]),
+            &vec(&c["y"]),
+            f(&c["trim"]),
+            Alternative::TwoSided,
+            0.9,
+        )
+        .unwrap_or_else(|e| panic!("{name}: {e}"));
+        let t = tost_trimmed(&r, f(&c["low"]), f(&c["high"]), 0.05).unwrap();
+        check_trimmed_tost(&t, c, &name);
+    }
+    let one = doc["tost_trimmed_one"].as_array().unwrap();
+    assert!(one.len() >= 3);
+    for c in one {
+        let name = c["name"].to_string();
+        let r = trimmed_t_one_sample(
+            &vec(&c["x"]),
+            f(&c["reference"]),
+            f(&c["trim"]),
+            Alternative::TwoSided,
+            0.9,
+        )
+        .unwrap_or_else(|e| panic!("{name}: {e}"));
+        let t = tost_trimmed(&r, f(&c["low"]), f(&c["high"]), 0.05).unwrap();
+        check_trimmed_tost(&t, c, &name);
     }
 }

@@ -151,7 +151,7 @@ fn h1() -> HypothesisResult {
     let test = TestResult {
         method: Method::WelchT,
         statistic_name: StatisticKind::T,
-        statistic: 2.41,
+        statistic: Some(2.41),
         df: Some(41.37),
         z: None,
         p: 0.0103,
@@ -172,6 +172,8 @@ fn h1() -> HypothesisResult {
         p_detail: None,
         continuity_correction: None,
         log10_p: Some(0.0103f64.log10()),
+        trim: None,
+        permutations: None,
     };
     HypothesisResult {
         id: "H1".into(),
@@ -188,7 +190,7 @@ fn h1() -> HypothesisResult {
             summary("drip", 24, 4.87, 0.81, [3.2, 4.3, 4.9, 5.4, 6.6]),
             summary("hand", 23, 4.25, 1.12, [2.1, 3.5, 4.2, 5.0, 6.4]),
         ],
-        statistic: 2.41,
+        statistic: Some(2.41),
         df: Some(41.37),
         p: 0.0103,
         p_adjusted: 0.0206,
@@ -242,7 +244,7 @@ fn h1() -> HypothesisResult {
         robustness: vec![TestResult {
             method: Method::MannWhitney,
             statistic_name: StatisticKind::U,
-            statistic: 371.5,
+            statistic: Some(371.5),
             df: None,
             z: Some(2.08),
             p: 0.0188,
@@ -266,6 +268,8 @@ fn h1() -> HypothesisResult {
             p_detail: Some(RankPMethod::NormalApproximation),
             continuity_correction: Some(true),
             log10_p: Some(0.0188f64.log10()),
+            trim: None,
+            permutations: None,
         }],
         equivalence: None,
         rows: RowFlow {
@@ -312,7 +316,7 @@ fn h2() -> HypothesisResult {
     let test = TestResult {
         method: Method::WilcoxonSignedRank,
         statistic_name: StatisticKind::WPlus,
-        statistic: 118.0,
+        statistic: Some(118.0),
         df: None,
         z: None,
         p: 0.214,
@@ -325,6 +329,8 @@ fn h2() -> HypothesisResult {
         p_detail: Some(RankPMethod::Exact),
         continuity_correction: None,
         log10_p: Some(0.214f64.log10()),
+        trim: None,
+        permutations: None,
     };
     HypothesisResult {
         id: "H2".into(),
@@ -342,7 +348,7 @@ fn h2() -> HypothesisResult {
             summary("hours_before", 18, 4.3, 1.9, [1.0, 3.0, 4.0, 5.5, 8.0]),
             summary("difference", 18, 0.6, 1.4, [-2.0, 0.0, 0.5, 1.5, 3.0]),
         ],
-        statistic: 118.0,
+        statistic: Some(118.0),
         df: None,
         p: 0.214,
         p_adjusted: 0.214,

@@ -68,7 +68,12 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
     let mut diffs = diffs;
     sort_values(&mut diffs);
     let d_once = std::sync::OnceLock::new();
-    let opts = h.conventions.rank_options();
+    let settings = Settings {
+        rank: h.conventions.rank_options(),
+        trim: h.conventions.trim(),
+        permutations: h.conventions.permutations(),
+        seed: plan.seed,
+    };
     let run = |m: Method| {
         let data = Values {
             first: &first,
@@ -76,7 +81,7 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
             diffs: &diffs,
             reference,
         };
-        run_method(m, h.alternative, level, &data, &opts, &d_once)
+        run_method(m, h.design, h.alternative, level, &data, &settings, &d_once)
     };
     // With robustness checks on, every method that fits the design is
     // reported, so all of them run at once, beside the descriptives and the
@@ -102,7 +107,7 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
         },
     );
     let groups = groups.map_err(|e| fail("cannot describe the data", e))?;
-    let method = choose(h.method, h.design, &checks);
+    let method = choose(h.method, h.design, h.conventions.rank_fallback(), &checks);
     let mut checks = checks;
     if h.method == Method::Checked {
         checks.branch = Some(branch(h.design, &checks));
@@ -121,7 +126,17 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
         None => None,
         Some([low, high]) => Some(
             equivalence(
-                method, plan.alpha, low, high, &first, &second, &diffs, reference,
+                method,
+                h.design,
+                plan.alpha,
+                [low, high],
+                &Values {
+                    first: &first,
+                    second: &second,
+                    diffs: &diffs,
+                    reference,
+                },
+                &settings,
             )
             .map_err(|e| fail("the equivalence test cannot be computed", e))?,
         ),
@@ -343,6 +358,18 @@ fn effect(name: EffectKind, e: &stats::effect::Effect) -> EffectSize {
     }
 }
 
+/// The conventions and seed one hypothesis's methods run with.
+struct Settings {
+    /// Zero rule and continuity correction of the rank tests.
+    rank: stats::rank_tests::RankOptions,
+    /// Trimming proportion of the trimmed-mean t.
+    trim: f64,
+    /// Splits for Brunner–Munzel's permutation p.
+    permutations: u64,
+    /// The plan's seed (random splits).
+    seed: u64,
+}
+
 /// The values one hypothesis's methods run on.
 struct Values<'a> {
     first: &'a [f64],
@@ -355,10 +382,11 @@ struct Values<'a> {
 
 fn run_method(
     m: Method,
+    design: Design,
     alt: Alternative,
     level: f64,
     v: &Values,
-    opts: &stats::rank_tests::RankOptions,
+    settings: &Settings,
     d_once: &std::sync::OnceLock<std::result::Result<stats::effect::Effect, StatsError>>,
 ) -> std::result::Result<TestResult, StatsError> {
     let Values {
@@ -369,12 +397,13 @@ fn run_method(
     } = *v;
     use stats::{
         effect as fx, mann_whitney::mann_whitney_with, rank_tests as rk, ttest as tt,
-        wilcoxon::wilcoxon_signed_rank_with,
+        wilcoxon::wilcoxon_signed_rank_with, yuen,
     };
+    let opts = &settings.rank;
     let t_result = |name: Method, t: tt::TTest, effects: Vec<EffectSize>| TestResult {
         method: name,
         statistic_name: StatisticKind::T,
-        statistic: t.t,
+        statistic: Some(t.t),
         df: Some(t.df),
         z: None,
         p: t.p,
@@ -393,6 +422,8 @@ fn run_method(
         p_detail: None,
         continuity_correction: None,
         log10_p: (t.p > 0.0).then(|| t.p.log10()),
+        trim: None,
+        permutations: None,
     };
     let rank_result = |name: Method, r: rk::RankTest, stat: StatisticKind, est: EstimateKind| {
         let mut effects = vec![EffectSize {
@@ -412,7 +443,7 @@ fn run_method(
         TestResult {
             method: name,
             statistic_name: stat,
-            statistic: r.statistic,
+            statistic: Some(r.statistic),
             df: None,
             z: r.z,
             p: r.p,
@@ -432,6 +463,8 @@ fn run_method(
             continuity_correction: (r.p_detail == stats::RankPMethod::NormalApproximation)
                 .then_some(opts.continuity),
             log10_p: Some(r.log10_p),
+            trim: None,
+            permutations: None,
         }
     };
     Ok(match m {
@@ -478,6 +511,101 @@ fn run_method(
                 EstimateKind::HodgesLehmannEstimate,
             )
         }
+        Method::BrunnerMunzel => {
+            let r = stats::brunner_munzel::brunner_munzel_test(
+                first,
+                second,
+                alt,
+                level,
+                settings.permutations,
+                settings.seed,
+            )?;
+            let (statistic, df) = match r.bm.inference {
+                stats::brunner_munzel::BmInference::TApproximation { statistic, df, .. } => {
+                    (Some(statistic), Some(df))
+                }
+                stats::brunner_munzel::BmInference::ZeroVariance => (None, None),
+            };
+            // The rank-biserial correlation is 2θ − 1 (Cliff's δ), on the
+            // same scale as the Mann–Whitney row's effect.
+            let to_r = |v: f64| 2.0 * v - 1.0;
+            TestResult {
+                method: m,
+                statistic_name: StatisticKind::T,
+                statistic,
+                df,
+                z: None,
+                p: r.p,
+                p_method: Some(r.p_detail.coarse()),
+                estimate: Estimate {
+                    name: EstimateKind::ProbabilityOfSuperiority,
+                    value: r.bm.estimate,
+                    ci_low: r.interval.low,
+                    ci_high: r.interval.high,
+                    confidence: level,
+                },
+                effects: vec![EffectSize {
+                    name: EffectKind::RankBiserial,
+                    value: to_r(r.bm.estimate),
+                    ci_low: r.interval.low.map(to_r),
+                    ci_high: r.interval.high.map(to_r),
+                }],
+                zeros_dropped: None,
+                zero_rule: None,
+                zeros_ranked: None,
+                p_detail: Some(r.p_detail),
+                continuity_correction: None,
+                log10_p: (r.p > 0.0).then(|| r.p.log10()),
+                trim: None,
+                permutations: r.splits,
+            }
+        }
+        Method::TrimmedT => {
+            let (t, kind) = match design {
+                Design::Independent => (
+                    yuen::yuen(first, second, settings.trim, alt, level)?,
+                    EstimateKind::TrimmedMeanDifference,
+                ),
+                Design::Paired => (
+                    yuen::trimmed_t_one_sample(diffs, 0.0, settings.trim, alt, level)?,
+                    EstimateKind::TrimmedMeanOfDifferences,
+                ),
+                Design::OneSample => (
+                    yuen::trimmed_t_one_sample(diffs, reference, settings.trim, alt, level)?,
+                    EstimateKind::TrimmedMeanDifference,
+                ),
+            };
+            TestResult {
+                method: m,
+                statistic_name: StatisticKind::T,
+                statistic: Some(t.statistic),
+                df: Some(t.df),
+                z: None,
+                p: t.p,
+                p_method: None,
+                estimate: Estimate {
+                    name: kind,
+                    value: t.estimate,
+                    ci_low: t.interval.low,
+                    ci_high: t.interval.high,
+                    confidence: level,
+                },
+                effects: vec![EffectSize {
+                    name: EffectKind::RobustD,
+                    value: t.effect,
+                    ci_low: None,
+                    ci_high: None,
+                }],
+                zeros_dropped: None,
+                zero_rule: None,
+                zeros_ranked: None,
+                p_detail: None,
+                continuity_correction: None,
+                log10_p: (t.p > 0.0).then(|| t.p.log10()),
+                trim: Some(t.trim),
+                permutations: None,
+            }
+        }
         Method::Checked => {
             return Err(StatsError::BadParameter(
                 "`checked` is resolved before a test runs",
@@ -486,25 +614,89 @@ fn run_method(
     })
 }
 
-#[allow(clippy::too_many_arguments)]
+/// The equivalence test that belongs to the method run: TOST on the
+/// mean or trimmed mean difference, on the Hodges–Lehmann shift or
+/// pseudo-median, or on the probability of superiority.
 fn equivalence(
     method: Method,
+    design: Design,
     alpha: f64,
-    low: f64,
-    high: f64,
-    first: &[f64],
-    second: &[f64],
-    diffs: &[f64],
-    reference: f64,
+    [low, high]: [f64; 2],
+    v: &Values,
+    settings: &Settings,
 ) -> std::result::Result<EquivalenceResult, StatsError> {
-    use stats::equivalence as eq;
-    let t = match method {
-        Method::StudentT | Method::WelchT => {
-            eq::tost_two_sample(first, second, low, high, alpha, method == Method::WelchT)?
+    use stats::{equivalence as eq, equivalence_rank as er, yuen};
+    let Values {
+        first,
+        second,
+        diffs,
+        reference,
+    } = *v;
+    let level = 1.0 - 2.0 * alpha;
+    Ok(match method {
+        Method::StudentT | Method::WelchT => EquivalenceResult::from_tost(
+            &eq::tost_two_sample(first, second, low, high, alpha, method == Method::WelchT)?,
+            alpha,
+            EstimateKind::MeanDifference,
+        ),
+        Method::PairedT | Method::OneSampleT => EquivalenceResult::from_tost(
+            &eq::tost_one_sample(diffs, reference, low, high, alpha)?,
+            alpha,
+            EstimateKind::MeanDifference,
+        ),
+        Method::TrimmedT => {
+            let (r, kind) = match design {
+                Design::Independent => (
+                    yuen::yuen(first, second, settings.trim, Alternative::TwoSided, level)?,
+                    EstimateKind::TrimmedMeanDifference,
+                ),
+                Design::Paired => (
+                    yuen::trimmed_t_one_sample(
+                        diffs,
+                        0.0,
+                        settings.trim,
+                        Alternative::TwoSided,
+                        level,
+                    )?,
+                    EstimateKind::TrimmedMeanOfDifferences,
+                ),
+                Design::OneSample => (
+                    yuen::trimmed_t_one_sample(
+                        diffs,
+                        reference,
+                        settings.trim,
+                        Alternative::TwoSided,
+                        level,
+                    )?,
+                    EstimateKind::TrimmedMeanDifference,
+                ),
+            };
+            EquivalenceResult::from_tost(&yuen::tost_trimmed(&r, low, high, alpha)?, alpha, kind)
         }
-        _ => eq::tost_one_sample(diffs, reference, low, high, alpha)?,
-    };
-    Ok(EquivalenceResult::from_tost(&t, alpha))
+        Method::MannWhitney => EquivalenceResult::from_rank_tost(
+            &er::tost_hodges_lehmann(first, second, low, high, alpha, &settings.rank)?,
+            alpha,
+            EstimateKind::HodgesLehmannShift,
+        ),
+        Method::WilcoxonSignedRank => {
+            let shifted: Vec<f64> = diffs.iter().map(|d| d - reference).collect();
+            EquivalenceResult::from_rank_tost(
+                &er::tost_signed_rank(&shifted, low, high, alpha, &settings.rank)?,
+                alpha,
+                EstimateKind::HodgesLehmannEstimate,
+            )
+        }
+        Method::BrunnerMunzel => EquivalenceResult::from_rank_tost(
+            &er::tost_prob_superiority(first, second, low, high, alpha)?,
+            alpha,
+            EstimateKind::ProbabilityOfSuperiority,
+        ),
+        Method::Checked => {
+            return Err(StatsError::BadParameter(
+                "`checked` is resolved before a test runs",
+            ))
+        }
+    })
 }
 
 /// Figure data: every value up to [`PLOT_POINTS`], otherwise evenly spaced

@@ -3,13 +3,14 @@
 //! own, for every design, without running a test.
 //!
 //! The rule (README, "The analysis file", methods): if any normality check
-//! rejects, the rank test; else if a check could not run, the rank-free
+//! rejects, the rank test (for independent groups the plan's
+//! `rank_fallback`: Mann–Whitney unless it names Brunner–Munzel); else if a check could not run, the rank-free
 //! fallback (Welch for independent groups, the t test otherwise); else, for
 //! independent groups, Student's t when the spread check keeps equal
 //! spread and Welch's when it rejects; for paired and one-sample designs,
 //! the t test.
 
-use crate::plan::{Design, Method};
+use crate::plan::{Design, Method, RankFallback};
 use crate::results::{Branch, Checks};
 
 /// The branch of the `checked` rule the checks lead to.
@@ -32,12 +33,20 @@ pub(super) fn branch(design: Design, c: &Checks) -> Branch {
 }
 
 /// The method actually run: the plan's, or the `checked` rule's choice.
-pub(super) fn choose(planned: Method, design: Design, c: &Checks) -> Method {
+pub(super) fn choose(
+    planned: Method,
+    design: Design,
+    fallback: RankFallback,
+    c: &Checks,
+) -> Method {
     if planned != Method::Checked {
         return planned;
     }
     match (branch(design, c), design) {
-        (Branch::NotNormal, Design::Independent) => Method::MannWhitney,
+        (Branch::NotNormal, Design::Independent) => match fallback {
+            RankFallback::MannWhitney => Method::MannWhitney,
+            RankFallback::BrunnerMunzel => Method::BrunnerMunzel,
+        },
         (Branch::NotNormal, _) => Method::WilcoxonSignedRank,
         (Branch::NormalEqualSpread, Design::Independent) => Method::StudentT,
         (_, Design::Independent) => Method::WelchT,
@@ -118,9 +127,31 @@ mod tests {
                     let case = format!("normality {a:?}/{b:?}, spread {s:?}");
                     assert_eq!(branch(Design::Independent, &c), want_branch, "{case}");
                     assert_eq!(
-                        choose(Method::Checked, Design::Independent, &c),
+                        choose(
+                            Method::Checked,
+                            Design::Independent,
+                            RankFallback::MannWhitney,
+                            &c
+                        ),
                         want_method,
                         "{case}"
+                    );
+                    // The declared fallback replaces Mann–Whitney, and
+                    // only Mann–Whitney.
+                    let with_bm = if want_method == Method::MannWhitney {
+                        Method::BrunnerMunzel
+                    } else {
+                        want_method
+                    };
+                    assert_eq!(
+                        choose(
+                            Method::Checked,
+                            Design::Independent,
+                            RankFallback::BrunnerMunzel,
+                            &c
+                        ),
+                        with_bm,
+                        "{case}, Brunner–Munzel fallback"
                     );
                 }
             }
@@ -141,7 +172,9 @@ mod tests {
                     None => (Branch::CheckNotRun, t),
                 };
                 assert_eq!(branch(design, &c), want_branch, "{design:?} {n:?}");
-                assert_eq!(choose(Method::Checked, design, &c), want_method);
+                for fallback in [RankFallback::MannWhitney, RankFallback::BrunnerMunzel] {
+                    assert_eq!(choose(Method::Checked, design, fallback, &c), want_method);
+                }
             }
         }
     }
@@ -149,13 +182,29 @@ mod tests {
     #[test]
     fn a_fixed_method_is_kept_whatever_the_checks_say() {
         let rejecting = checks(&[Some(true), Some(true)], Some(Some(true)));
-        for m in [Method::StudentT, Method::WelchT, Method::MannWhitney] {
-            assert_eq!(choose(m, Design::Independent, &rejecting), m);
+        for m in [
+            Method::StudentT,
+            Method::WelchT,
+            Method::MannWhitney,
+            Method::BrunnerMunzel,
+            Method::TrimmedT,
+        ] {
+            assert_eq!(
+                choose(
+                    m,
+                    Design::Independent,
+                    RankFallback::BrunnerMunzel,
+                    &rejecting
+                ),
+                m
+            );
         }
         let rejecting = checks(&[Some(true)], None);
-        assert_eq!(
-            choose(Method::PairedT, Design::Paired, &rejecting),
-            Method::PairedT
-        );
+        for m in [Method::PairedT, Method::TrimmedT] {
+            assert_eq!(
+                choose(m, Design::Paired, RankFallback::MannWhitney, &rejecting),
+                m
+            );
+        }
     }
 }

@@ -161,13 +161,21 @@ pub(crate) fn run_summary(o: &RunOutcome, colour: bool) -> String {
             EffectKind::DZ => ("dz", apa::two(eff.value)),
             EffectKind::RankBiserial => ("r", apa::bounded(eff.value, 2)),
             EffectKind::ProbabilityOfSuperiority => ("PS", apa::bounded(eff.value, 2)),
+            EffectKind::RobustD => ("dR", apa::two(eff.value)),
+        };
+        // A difference, or for Brunner–Munzel the probability of
+        // superiority, which is not a difference.
+        let (what, fmt) = if est.name.in_outcome_units() {
+            ("diff", apa::two as fn(f64) -> String)
+        } else {
+            ("PS", (|x| apa::bounded(x, 2)) as fn(f64) -> String)
         };
         s.push_str(&format!(
-            "{:<width$}  {}  diff {} {}  {} {}  p {}  {}\n",
+            "{:<width$}  {}  {what} {} {}  {} {}  p {}  {}\n",
             clean(&h.id),
             h.method.as_str(),
-            apa::two(est.value),
-            apa::bounds(est.ci_low, est.ci_high, apa::two),
+            fmt(est.value),
+            apa::bounds(est.ci_low, est.ci_high, fmt),
             symbol,
             effect_value,
             apa::p_number(h.p_adjusted),

@@ -212,19 +212,27 @@ pub enum Method {
     WilcoxonSignedRank,
     /// One-sample t-test.
     OneSampleT,
+    /// Brunner–Munzel test of stochastic equality (independent groups),
+    /// which does not assume equal spreads.
+    BrunnerMunzel,
+    /// Trimmed-mean t: Yuen's test for independent groups, the trimmed t
+    /// of the differences (paired) or of the values (one sample).
+    TrimmedT,
     /// Preregistered checks choose the test.
     Checked,
 }
 
 impl Method {
     /// Every method, in the order the docs list them.
-    pub(crate) const ALL: [Method; 7] = [
+    pub(crate) const ALL: [Method; 9] = [
         Method::StudentT,
         Method::WelchT,
         Method::MannWhitney,
         Method::PairedT,
         Method::WilcoxonSignedRank,
         Method::OneSampleT,
+        Method::BrunnerMunzel,
+        Method::TrimmedT,
         Method::Checked,
     ];
 
@@ -237,6 +245,8 @@ impl Method {
             Method::PairedT => "paired-t",
             Method::WilcoxonSignedRank => "wilcoxon-signed-rank",
             Method::OneSampleT => "one-sample-t",
+            Method::BrunnerMunzel => "brunner-munzel",
+            Method::TrimmedT => "trimmed-t",
             Method::Checked => "checked",
         }
     }
@@ -245,9 +255,14 @@ impl Method {
     pub(crate) fn fits(self, design: Design) -> bool {
         use Method::*;
         match design {
-            Design::Independent => matches!(self, StudentT | WelchT | MannWhitney | Checked),
-            Design::Paired => matches!(self, PairedT | WilcoxonSignedRank | Checked),
-            Design::OneSample => matches!(self, OneSampleT | WilcoxonSignedRank | Checked),
+            Design::Independent => matches!(
+                self,
+                StudentT | WelchT | MannWhitney | BrunnerMunzel | TrimmedT | Checked
+            ),
+            Design::Paired => matches!(self, PairedT | WilcoxonSignedRank | TrimmedT | Checked),
+            Design::OneSample => {
+                matches!(self, OneSampleT | WilcoxonSignedRank | TrimmedT | Checked)
+            }
         }
     }
 
@@ -276,7 +291,15 @@ impl Method {
 
     /// Whether the method is a rank test.
     pub(crate) fn is_rank(self) -> bool {
-        matches!(self, Method::MannWhitney | Method::WilcoxonSignedRank)
+        matches!(
+            self,
+            Method::MannWhitney | Method::WilcoxonSignedRank | Method::BrunnerMunzel
+        )
+    }
+
+    /// Whether the method runs under the plan's `trim` (trimmed means).
+    pub(crate) fn is_trimmed(self) -> bool {
+        self == Method::TrimmedT
     }
 }
 

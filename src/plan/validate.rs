@@ -785,16 +785,15 @@ impl Checker<'_> {
                         .at(e, "`equivalence` must be two numbers [low, high] with low < high")
                         .help("write the smallest differences that matter, e.g. `equivalence = [-5, 5]` in the outcome's units"));
                 }
-                if method.is_rank() || method == Method::Checked {
+                if method == Method::Checked {
                     return Err(self
-                        .at(
-                            e,
-                            format!(
-                                "equivalence bounds need a t method; \"{}\" is not one",
-                                method.as_str()
-                            ),
-                        )
-                        .help("use welch-t or student-t (independent), paired-t or one-sample-t"));
+                        .at(e, "equivalence bounds need a fixed method; with \"checked\" the bounds would mean a mean difference or a rank shift depending on the checks")
+                        .help("preregister the method the bounds are written for: welch-t, student-t, trimmed-t, mann-whitney or brunner-munzel (independent); paired-t, one-sample-t, trimmed-t or wilcoxon-signed-rank"));
+                }
+                if method == Method::BrunnerMunzel && (v[0].0 < 0.0 || v[1].0 > 1.0) {
+                    return Err(self
+                        .at(e, "with brunner-munzel the equivalence bounds are on the probability of superiority, so they must lie between 0 and 1")
+                        .help("write bounds around ½, e.g. `equivalence = [0.4, 0.6]`: the first group's values are larger than the second's with a probability between 40% and 60%"));
                 }
                 if alternative != Alternative::TwoSided {
                     return Err(self
@@ -816,7 +815,7 @@ impl Checker<'_> {
             label: r.label.clone(),
             units: r.units.clone(),
             robustness: r.robustness.unwrap_or(true),
-            conventions: self.conventions(design, r)?,
+            conventions: self.conventions(design, method, r)?,
             planning: match &r.planning {
                 Some(p) => Some(self.planning(design, method, p)?),
                 None => None,
@@ -826,7 +825,12 @@ impl Checker<'_> {
 
     /// The rank and robust conventions of a hypothesis; a stated default
     /// is stored as absent (see [`Conventions`]).
-    fn conventions(&self, design: Design, r: &RawHypothesis) -> Result<Conventions> {
+    fn conventions(
+        &self,
+        design: Design,
+        method: Method,
+        r: &RawHypothesis,
+    ) -> Result<Conventions> {
         let zero_differences = match &r.zero_differences {
             None => None,
             Some(z) => {
@@ -854,39 +858,84 @@ impl Checker<'_> {
             .as_ref()
             .map(|c| *c.get_ref())
             .filter(|&c| !c);
-        // `trim`, `permutations` and `rank_fallback` belong to the
-        // trimmed-mean and Brunner–Munzel methods, which no plan can name
-        // yet: a key that changes nothing is refused rather than ignored.
-        let unused = |key: &str, at: Option<std::ops::Range<usize>>| -> Result<()> {
-            match at {
-                None => Ok(()),
-                Some(span) => Err({
-                    let (l, c) = line_col(self.text, span.start);
-                    Failure::input(format!("`{key}` applies to no method attest runs")).at(
-                        self.path,
-                        l,
-                        Some(c),
-                    )
+        let rank_fallback = match &r.rank_fallback {
+            None => None,
+            Some(f) => {
+                if method != Method::Checked || design != Design::Independent {
+                    return Err(self
+                        .at(f, "`rank_fallback` is used only by `method = \"checked\"` with independent groups")
+                        .help("remove it, or preregister the rank test itself as the method"));
                 }
-                .help(format!(
-                    "remove `{key}`; the methods this version runs are {}",
-                    Method::ALL
-                        .iter()
-                        .map(|m| m.as_str())
-                        .collect::<Vec<_>>()
-                        .join(", ")
-                ))),
+                let v = self.choice(
+                    f,
+                    "rank_fallback",
+                    &[
+                        ("mann-whitney", RankFallback::MannWhitney),
+                        ("brunner-munzel", RankFallback::BrunnerMunzel),
+                    ],
+                )?;
+                (v != RankFallback::default()).then_some(v)
             }
         };
-        unused("trim", r.trim.as_ref().map(|t| t.span()))?;
-        unused("permutations", r.permutations.as_ref().map(|t| t.span()))?;
-        unused("rank_fallback", r.rank_fallback.as_ref().map(|t| t.span()))?;
+        // A key that changes nothing is refused rather than ignored: the
+        // trimming proportion reaches the trimmed t (preregistered, or as
+        // a robustness check), the number of permutations Brunner–Munzel
+        // (preregistered, the `checked` rule's fallback, or a robustness
+        // check, for independent groups only).
+        let robustness = r.robustness.unwrap_or(true);
+        let trim = match &r.trim {
+            None => None,
+            Some(t) => {
+                if !(method.is_trimmed() || robustness) {
+                    return Err(self
+                        .at(t, "`trim` is used only by the trimmed-mean t, which this hypothesis does not run")
+                        .help("remove it, or preregister `method = \"trimmed-t\"` (or keep `robustness` on to report it as a check)"));
+                }
+                let v = t.get_ref().0;
+                if !(0.0..0.5).contains(&v) {
+                    return Err(self
+                        .at(
+                            t,
+                            format!("`trim` must be at least 0 and below 0.5, found {v}"),
+                        )
+                        .help(format!(
+                            "the proportion cut from each end; {DEFAULT_TRIM} is usual"
+                        )));
+                }
+                (v != DEFAULT_TRIM).then_some(v)
+            }
+        };
+        let permutations = match &r.permutations {
+            None => None,
+            Some(p) => {
+                let runs_bm = design == Design::Independent
+                    && (method == Method::BrunnerMunzel
+                        || robustness
+                        || rank_fallback == Some(RankFallback::BrunnerMunzel));
+                if !runs_bm {
+                    return Err(self
+                        .at(p, "`permutations` is used only by Brunner–Munzel, which this hypothesis does not run")
+                        .help("remove it, or preregister `method = \"brunner-munzel\"` for independent groups"));
+                }
+                let v = *p.get_ref();
+                let max = crate::stats::brunner_munzel::MAX_PERMUTATIONS as i64;
+                if !(1..=max).contains(&v) {
+                    return Err(self
+                        .at(
+                            p,
+                            format!("`permutations` must be between 1 and {max}, found {v}"),
+                        )
+                        .help(format!("{DEFAULT_PERMUTATIONS} is usual")));
+                }
+                (v as u64 != DEFAULT_PERMUTATIONS).then_some(v as u64)
+            }
+        };
         Ok(Conventions {
             zero_differences,
             continuity_correction,
-            trim: None,
-            permutations: None,
-            rank_fallback: None,
+            trim,
+            permutations,
+            rank_fallback,
         })
     }
 
@@ -941,6 +990,11 @@ impl Checker<'_> {
                     )
                     .help("remove them from this planning block"));
             }
+        }
+        if method == Method::TrimmedT {
+            return Err(self
+                .at(p, "sample-size planning is computed for the t-tests and the rank tests, not for trimmed-t")
+                .help("remove `[hypothesis.planning]`, or plan with the t-test for the same design (`attest power`) and state in the plan's summary why the trimmed t is run"));
         }
         if sd_ratio.is_some() && method != Method::WelchT {
             return Err(self
@@ -1259,15 +1313,102 @@ method = "welch-t"
             |from: &str, to: &str| parse(Path::new("a.toml"), &GOOD.replace(from, to)).unwrap_err();
         let e = bad("method =", "zero_differences = \"drop\"\nmethod =");
         assert!(e.what.contains("paired and one-sample designs only"));
-        // Keys of methods no plan can name yet are refused, not ignored.
-        for key in [
-            "trim = 0.1",
-            "permutations = 2000",
-            "rank_fallback = \"brunner-munzel\"",
+        // A key that would change nothing is refused, not ignored.
+        let no_robustness = |key: &str| {
+            parse(
+                Path::new("a.toml"),
+                &GOOD.replace("method =", &format!("robustness = false\n{key}\nmethod =")),
+            )
+            .unwrap_err()
+        };
+        assert!(no_robustness("trim = 0.1")
+            .what
+            .contains("used only by the trimmed-mean t"));
+        assert!(no_robustness("permutations = 2000")
+            .what
+            .contains("used only by Brunner–Munzel"));
+        let e = bad("method =", "rank_fallback = \"brunner-munzel\"\nmethod =");
+        assert!(
+            e.what.contains("only by `method = \"checked\"`"),
+            "{}",
+            e.what
+        );
+        // Ranges, each side of the boundary.
+        let with = |from: &str, to: &str| parse(Path::new("a.toml"), &GOOD.replace(from, to));
+        for (key, ok) in [
+            ("trim = 0.0", true),
+            ("trim = 0.49", true),
+            ("trim = 0.5", false),
+            ("trim = -0.01", false),
+            ("permutations = 1", true),
+            ("permutations = 10000000", true),
+            ("permutations = 10000001", false),
+            ("permutations = 0", false),
         ] {
-            let e = bad("method =", &format!("{key}\nmethod ="));
-            let name = key.split(' ').next().unwrap();
-            assert_eq!(e.what, format!("`{name}` applies to no method attest runs"));
+            let r = with("method =", &format!("{key}\nmethod ="));
+            assert_eq!(r.is_ok(), ok, "{key}");
         }
+        // Used where they apply, stored only when not the default.
+        let c = with(
+            "method = \"welch-t\"",
+            "method = \"checked\"\nrank_fallback = \"brunner-munzel\"\npermutations = 500\ntrim = 0.1",
+        )
+        .unwrap()
+        .plan
+        .hypotheses[0]
+            .conventions;
+        assert_eq!(c.rank_fallback(), RankFallback::BrunnerMunzel);
+        assert_eq!((c.permutations(), c.trim()), (500, 0.1));
+        let d = with(
+            "method = \"welch-t\"",
+            "method = \"trimmed-t\"\ntrim = 0.2\npermutations = 10000",
+        )
+        .unwrap()
+        .plan
+        .hypotheses[0]
+            .conventions;
+        assert!(d.is_default());
+        // Paired designs never run Brunner–Munzel.
+        let paired = GOOD
+            .replace("design = \"independent\"", "design = \"paired\"")
+            .replace(
+                "group = \"proof\"\nlevels = [\"long\", \"standard\"]",
+                "first = \"after\"\nsecond = \"before\"",
+            )
+            .replace("outcome = \"volume_ml\"\n", "")
+            .replace("welch-t", "trimmed-t");
+        let e = parse(
+            Path::new("a.toml"),
+            &paired.replace("method =", "permutations = 100\nmethod ="),
+        )
+        .unwrap_err();
+        assert!(e.what.contains("used only by Brunner–Munzel"));
+        assert!(parse(
+            Path::new("a.toml"),
+            &paired.replace("method =", "trim = 0.1\nmethod =")
+        )
+        .is_ok());
+    }
+
+    #[test]
+    fn equivalence_bounds_fit_their_method() {
+        let with = |method: &str, bounds: &str| {
+            parse(
+                Path::new("a.toml"),
+                &GOOD.replace("alternative = \"greater\"\n", "").replace(
+                    "\"welch-t\"",
+                    &format!("\"{method}\"\nequivalence = {bounds}"),
+                ),
+            )
+        };
+        assert!(with("mann-whitney", "[-20, 20]").is_ok());
+        assert!(with("trimmed-t", "[-20, 20]").is_ok());
+        assert!(with("brunner-munzel", "[0.4, 0.6]").is_ok());
+        assert!(with("brunner-munzel", "[0, 1]").is_ok());
+        let e = with("brunner-munzel", "[-20, 20]").unwrap_err();
+        assert!(e.what.contains("probability of superiority"), "{}", e.what);
+        assert!(with("brunner-munzel", "[0.4, 1.01]").is_err());
+        let e = with("checked", "[-20, 20]").unwrap_err();
+        assert!(e.what.contains("need a fixed method"), "{}", e.what);
     }
 }

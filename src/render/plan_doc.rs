@@ -12,7 +12,7 @@ use super::view::sentence::method_name;
 use super::{md, page, render_template, PlanDoc};
 use crate::error::Result;
 use crate::lock::LockFile;
-use crate::plan::{Comparison, Design, ExcludeKind, Hypothesis, Method};
+use crate::plan::{Comparison, Design, ExcludeKind, Hypothesis, Method, RankFallback};
 use crate::stats::rank_tests::ZeroRule;
 use crate::stats::Alternative;
 use minijinja::{Environment, Value};
@@ -122,13 +122,25 @@ fn compared(h: &Hypothesis) -> String {
 fn hypothesis(h: &Hypothesis, _confidence: f64) -> Vec<Value> {
     let (a, b) = labels(h);
     let rank = h.method.is_rank();
-    let (delta, legend) = match (h.design, rank) {
+    let (delta, legend) = match (h.design, h.method) {
+        (Design::Independent, Method::BrunnerMunzel) => ("θ".to_string(), format!("θ is the probability that a value of {a} exceeds a value of {b}, with ties counting half (½ when neither group tends to have the larger values)")),
+        (Design::Independent, Method::TrimmedT) => ("μt₁ − μt₂".to_string(), format!("μt₁ and μt₂ are the {}% trimmed means of {a} and {b}", trim_share(h))),
+        (Design::Paired, Method::TrimmedT) => ("μt_D".to_string(), format!("μt_D is the {}% trimmed mean of the differences {a} − {b}", trim_share(h))),
+        (Design::OneSample, Method::TrimmedT) => (format!("μt − {b}"), format!("μt is the {}% trimmed mean of {}", trim_share(h), outcome(h))),
+        _ => match (h.design, rank) {
         (Design::Independent, false) => ("μ₁ − μ₂".to_string(), format!("μ₁ is the mean of {a} and μ₂ the mean of {b}")),
         (Design::Independent, true) => ("Δ".into(), format!("Δ is the shift in location of {a} relative to {b} (how far the values of {a} sit above those of {b})")),
         (Design::Paired, false) => ("μ_D".into(), format!("μ_D is the mean of the differences {a} − {b}")),
         (Design::Paired, true) => ("Δ".into(), format!("Δ is the centre (pseudo-median) of the differences {a} − {b}")),
         (Design::OneSample, false) => (format!("μ − {b}"), format!("μ is the mean of {}", outcome(h))),
         (Design::OneSample, true) => (format!("Δ − {b}"), format!("Δ is the centre (pseudo-median) of {}", outcome(h))),
+        },
+    };
+    // The value of no difference: ½ for θ, 0 for every difference.
+    let null = if h.method == Method::BrunnerMunzel {
+        "½"
+    } else {
+        "0"
     };
     let mut lines = vec![md(format!("**{}:** {}", escape(&h.id), escape(&h.claim)))];
     match h.equivalence {
@@ -136,7 +148,17 @@ fn hypothesis(h: &Hypothesis, _confidence: f64) -> Vec<Value> {
             let (l, u) = (apa::two(low), apa::two(high));
             lines.push(md(format!("Null: {delta} ≤ {l} or {delta} ≥ {u}")));
             lines.push(md(format!("Alternative: {l} < {delta} < {u}")));
-            lines.push(md(format!("In words: the difference lies inside the bounds {l} to {u}{}, shown by two one-sided tests; {legend}.", units(h))));
+            let (l, u) = if h.method == Method::BrunnerMunzel {
+                (apa::bounded(low, 2), apa::bounded(high, 2))
+            } else {
+                (l, u)
+            };
+            let unit = if h.method == Method::BrunnerMunzel {
+                String::new()
+            } else {
+                units(h)
+            };
+            lines.push(md(format!("In words: {delta} lies inside the bounds {l} to {u}{unit}, shown by two one-sided tests; {legend}.")));
         }
         None => {
             let (h0, h1, words) = match h.alternative {
@@ -160,13 +182,22 @@ fn hypothesis(h: &Hypothesis, _confidence: f64) -> Vec<Value> {
                     ),
                 ),
             };
-            lines.push(md(format!("Null: {delta} {h0} 0")));
-            lines.push(md(format!("Alternative: {delta} {h1} 0")));
+            lines.push(md(format!("Null: {delta} {h0} {null}")));
+            lines.push(md(format!("Alternative: {delta} {h1} {null}")));
             lines.push(md(format!("Direction: {words}; {legend}.")));
         }
     }
     if h.method == Method::Checked {
-        lines.push(md("If the checks choose the rank test, the same hypotheses are read as a shift in location rather than a difference in means.".to_string()));
+        let reading = if h.design == Design::Independent
+            && h.conventions.rank_fallback() == RankFallback::BrunnerMunzel
+        {
+            "as the probability that a value of the first group exceeds one of the second (null: ½) rather than a difference in means"
+        } else {
+            "as a shift in location rather than a difference in means"
+        };
+        lines.push(md(format!(
+            "If the checks choose the rank test, the same hypotheses are read {reading}."
+        )));
     }
     lines
 }
@@ -178,11 +209,36 @@ fn units(h: &Hypothesis) -> String {
         .unwrap_or_default()
 }
 
-/// The preregistered conventions of the rank tests, in words, for any
-/// hypothesis whose test is or may be a rank test.
+/// The trimming proportion as a whole percentage.
+fn trim_share(h: &Hypothesis) -> String {
+    format!("{:.0}", h.conventions.trim() * 100.0)
+}
+
+/// The preregistered conventions of the rank and robust tests, in words,
+/// for any hypothesis whose test (or a robustness check) uses them.
 fn rank_rules(h: &Hypothesis) -> String {
+    let mut out = String::new();
+    if h.method.is_trimmed() {
+        out.push_str(&format!(
+            " The trimmed-mean *t* cuts {}% of the values from each end.",
+            trim_share(h)
+        ));
+    } else if h.robustness && h.conventions.trim.is_some() {
+        out.push_str(&format!(" The trimmed-mean *t* reported as a robustness check cuts {}% of the values from each end.", trim_share(h)));
+    }
+    let bm = h.method == Method::BrunnerMunzel
+        || (h.method == Method::Checked
+            && h.conventions.rank_fallback() == RankFallback::BrunnerMunzel);
+    if bm || (h.design == Design::Independent && h.conventions.permutations.is_some()) {
+        out.push_str(&format!(
+            " Brunner–Munzel's *p* comes from the studentised permutation distribution when the smaller group has fewer than {} values and both together at most {} (every split when there are at most {n} of them, otherwise {n} random splits from the plan's seed), or when its variance estimate is 0; otherwise from Student's *t* with Satterthwaite's degrees of freedom.",
+            crate::stats::brunner_munzel::PERMUTATION_BELOW,
+            crate::stats::brunner_munzel::PERMUTATION_MAX_N,
+            n = h.conventions.permutations(),
+        ));
+    }
     if !(h.method.is_rank() || h.method == Method::Checked) {
-        return String::new();
+        return out;
     }
     let o = h.conventions.rank_options();
     let zeros = match (h.design, o.zeros) {
@@ -197,7 +253,10 @@ fn rank_rules(h: &Hypothesis) -> String {
     } else {
         " Where the rank test's *p* comes from the normal approximation, it carries no continuity correction."
     };
-    format!("{zeros}{continuity}")
+    if h.method == Method::BrunnerMunzel {
+        return out;
+    }
+    format!("{out}{zeros}{continuity}")
 }
 
 fn choice(h: &Hypothesis, check_alpha: f64) -> String {
@@ -214,9 +273,13 @@ fn choice_words(h: &Hypothesis, check_alpha: f64) -> String {
             method_name(h.method)
         );
     }
+    let fallback = match h.conventions.rank_fallback() {
+        RankFallback::MannWhitney => method_name(Method::MannWhitney),
+        RankFallback::BrunnerMunzel => method_name(Method::BrunnerMunzel),
+    };
     match h.design {
         Design::Independent => format!(
-            "{id}: Shapiro–Wilk on each group and Brown–Forsythe on the spread, each judged at α = {a}. If normality is rejected in either group → Mann–Whitney U test; if normality holds and the spread differs → Welch's t-test; if both hold → Student's t-test; if a check cannot run (too few values) → Welch's t-test."
+            "{id}: Shapiro–Wilk on each group and Brown–Forsythe on the spread, each judged at α = {a}. If normality is rejected in either group → {fallback}; if normality holds and the spread differs → Welch's t-test; if both hold → Student's t-test; if a check cannot run (too few values) → Welch's t-test."
         ),
         _ => format!(
             "{id}: Shapiro–Wilk on the differences, judged at α = {a}. If normality is rejected → Wilcoxon signed-rank test; otherwise, or if the check cannot run → {}.",

@@ -249,7 +249,9 @@ fn qq(area: &Area, sets: &[PlotData], f: &FigureView) -> DrawResult {
 
 fn difference(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
     let e = &h.estimate;
-    let mut vals = vec![0.0, e.value];
+    // The value of no difference: 0, or ½ for a probability of superiority.
+    let null = e.name.null_value();
+    let mut vals = vec![null, e.value];
     vals.extend(e.ci_low);
     vals.extend(e.ci_high);
     if let Some(eq) = &h.equivalence {
@@ -268,7 +270,7 @@ fn difference(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
         .x_desc(&f.value_axis)
         .light_line_style(WHITE)
         .draw()?;
-    chart.draw_series(dashed((0.0, 0.0), (0.0, 1.0)))?;
+    chart.draw_series(dashed((null, 0.0), (null, 1.0)))?;
     if let Some(eq) = &h.equivalence {
         for b in [eq.low, eq.high] {
             chart.draw_series((0..20).step_by(3).map(|i| {

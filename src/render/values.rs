@@ -16,7 +16,7 @@
 
 use crate::error::{Failure, Result};
 use crate::render::view::{apa, sentence};
-use crate::results::{HypothesisResult, Method, Results, StatisticKind};
+use crate::results::{HypothesisResult, Results};
 use pulldown_cmark::{Event, Parser, Tag, TagEnd};
 use std::collections::BTreeMap;
 
@@ -218,35 +218,27 @@ pub(crate) fn from_results(r: &Results) -> Result<Values> {
 }
 
 /// The test statistic without the method's name: `*t*(97.31) = 2.71`,
-/// `*U* = 312`, `*W*+ = 123`.
+/// `*U* = 312`, `*W*+ = 123`; for equivalence, the deciding one of the
+/// two one-sided tests (the larger p), or its p when it has no t.
 fn bare_statistic(h: &HypothesisResult) -> String {
-    let t = &h.test;
     if let Some(eq) = &h.equivalence {
-        // The deciding one of the two one-sided tests: the larger p.
         let deciding = if eq.p_lower >= eq.p_upper {
             eq.t_lower
         } else {
             eq.t_upper
         };
-        return format!(
-            "{}({}) = {}",
-            apa::sym("t"),
-            apa::df(eq.df, t.method == Method::WelchT),
-            apa::two(deciding)
-        );
-    }
-    match t.statistic_name {
-        StatisticKind::U => format!("{} = {}", apa::sym("U"), apa::rank_statistic(t.statistic)),
-        StatisticKind::WPlus => {
-            format!("{}+ = {}", apa::sym("W"), apa::rank_statistic(t.statistic))
+        if let (Some(t), Some(df)) = (deciding, eq.df) {
+            let fractional = df.fract() != 0.0;
+            return format!(
+                "{}({}) = {}",
+                apa::sym("t"),
+                apa::df(df, fractional),
+                apa::two(t)
+            );
         }
-        StatisticKind::T => {
-            let df =
-                t.df.map(|d| format!("({})", apa::df(d, t.method == Method::WelchT)))
-                    .unwrap_or_default();
-            format!("{}{df} = {}", apa::sym("t"), apa::two(t.statistic))
-        }
+        return apa::p_clause(eq.p);
     }
+    sentence::bare_statistic(&h.test)
 }
 
 /// Plain text for the terminal: Markdown emphasis removed.

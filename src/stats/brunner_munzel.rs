@@ -322,6 +322,90 @@ pub fn brunner_munzel_permutation(
     })
 }
 
+/// The smaller group size below which [`brunner_munzel_test`] takes its
+/// p from the studentised permutation distribution. Neubert & Brunner
+/// (2007) recommend the permutation version for small samples, where the
+/// t approximation can be liberal; where "small" ends is attest's own
+/// convention, 30 per group (common practice for a small sample).
+pub const PERMUTATION_BELOW: usize = 30;
+/// The pooled size above which the permutation p is not used for small
+/// groups (a split costs O(N), so `permutations · N` bounds the work;
+/// with the default 10 000 splits and N = 2 000, 2·10⁷ steps).
+pub const PERMUTATION_MAX_N: usize = 2_000;
+
+/// A Brunner–Munzel test with its p chosen by the documented rule.
+#[derive(Clone, Debug, PartialEq)]
+pub struct BmTest {
+    /// θ̂, its standard error and the t approximation (if defined).
+    pub bm: BrunnerMunzel,
+    /// p for the stated alternative.
+    pub p: f64,
+    /// How p was obtained.
+    pub p_detail: super::RankPMethod,
+    /// Splits behind a permutation p (all of them, or the number drawn).
+    pub splits: Option<u64>,
+    /// Interval for θ at `level`, clipped to [0, 1] (the range of a
+    /// probability); [0, 1] itself when the variance estimate is 0.
+    pub interval: Interval,
+}
+
+/// Brunner–Munzel with the p rule attest documents: the studentised
+/// permutation p (Neubert & Brunner 2007; every split when there are at
+/// most `permutations`, else `permutations` seeded random ones) when the
+/// smaller group has fewer than [`PERMUTATION_BELOW`] values and the
+/// pooled sample at most [`PERMUTATION_MAX_N`], and always when the
+/// variance estimate is 0 (the t approximation is then undefined);
+/// otherwise Student's t with Satterthwaite df (Brunner & Munzel 2000).
+///
+/// Errors: as [`brunner_munzel`] and [`brunner_munzel_permutation`].
+pub fn brunner_munzel_test(
+    x: &[f64],
+    y: &[f64],
+    alt: Alternative,
+    level: f64,
+    permutations: u64,
+    seed: u64,
+) -> Result<BmTest, StatsError> {
+    use super::RankPMethod;
+    let bm = brunner_munzel(x, y, alt, level)?;
+    let small = x.len().min(y.len()) < PERMUTATION_BELOW && x.len() + y.len() <= PERMUTATION_MAX_N;
+    let clip = |i: &Interval| Interval {
+        low: Some(i.low.map_or(0.0, |v| v.max(0.0))),
+        high: Some(i.high.map_or(1.0, |v| v.min(1.0))),
+        level: i.level,
+    };
+    let (interval, t_p) = match &bm.inference {
+        BmInference::TApproximation { interval, p, .. } => (clip(interval), Some(*p)),
+        BmInference::ZeroVariance => (
+            Interval {
+                low: Some(0.0),
+                high: Some(1.0),
+                level,
+            },
+            None,
+        ),
+    };
+    let (p, p_detail, splits) = match t_p {
+        Some(p) if !small => (p, RankPMethod::TApproximation, None),
+        _ => {
+            let perm = brunner_munzel_permutation(x, y, alt, permutations, seed)?;
+            let detail = if perm.exact {
+                RankPMethod::StudentisedPermutation
+            } else {
+                RankPMethod::StudentisedPermutationSampled
+            };
+            (perm.p, detail, Some(perm.splits))
+        }
+    };
+    Ok(BmTest {
+        bm,
+        p,
+        p_detail,
+        splits,
+        interval,
+    })
+}
+
 /// C(n, k) when it is at most `cap`, else `None` (no overflow: the
 /// running product C(n−k+i, i) stays below cap·n).
 fn binomial_at_most(n: usize, k: usize, cap: u64) -> Option<u64> {
@@ -382,5 +466,88 @@ mod tests {
         assert!(brunner_munzel_permutation(&[1.0, 2.0], &[1.0, 3.0], two, 0, 1).is_err());
         assert_eq!(binomial_at_most(20, 10, u64::MAX), Some(184_756));
         assert_eq!(binomial_at_most(20, 10, 1000), None);
+    }
+
+    #[test]
+    fn the_p_rule_switches_at_its_documented_sizes() {
+        let two = Alternative::TwoSided;
+        let group = |n: usize, shift: f64| -> Vec<f64> {
+            (0..n)
+                .map(|i| ((i * 7919) % 101) as f64 / 10.0 + shift)
+                .collect()
+        };
+        // Smaller group below PERMUTATION_BELOW: permutation p, all splits
+        // when few enough (C(12, 5) = 792 ≤ 10 000), else sampled.
+        let r = brunner_munzel_test(&group(5, 0.5), &group(7, 0.0), two, 0.95, 10_000, 1).unwrap();
+        assert_eq!(
+            r.p_detail,
+            super::super::RankPMethod::StudentisedPermutation
+        );
+        assert_eq!(r.splits, Some(792));
+        let r = brunner_munzel_test(&group(29, 0.5), &group(40, 0.0), two, 0.95, 500, 1).unwrap();
+        assert_eq!(
+            r.p_detail,
+            super::super::RankPMethod::StudentisedPermutationSampled
+        );
+        assert_eq!(r.splits, Some(500));
+        // At PERMUTATION_BELOW in both groups: the t approximation, whose p
+        // is the plain test's.
+        let (x, y) = (group(PERMUTATION_BELOW, 0.5), group(PERMUTATION_BELOW, 0.0));
+        let r = brunner_munzel_test(&x, &y, two, 0.95, 500, 1).unwrap();
+        assert_eq!(r.p_detail, super::super::RankPMethod::TApproximation);
+        let BmInference::TApproximation { p, .. } =
+            brunner_munzel(&x, &y, two, 0.95).unwrap().inference
+        else {
+            panic!("variance is not 0 here")
+        };
+        assert_eq!(r.p, p);
+        assert_eq!(r.splits, None);
+        // A small group beside a pooled sample above PERMUTATION_MAX_N: t.
+        let r = brunner_munzel_test(
+            &group(5, 0.5),
+            &group(PERMUTATION_MAX_N, 0.0),
+            two,
+            0.95,
+            500,
+            1,
+        )
+        .unwrap();
+        assert_eq!(r.p_detail, super::super::RankPMethod::TApproximation);
+    }
+
+    #[test]
+    fn groups_that_do_not_overlap_take_the_permutation_p_at_any_size() {
+        // Every value of x above every value of y: θ̂ = 1, variance 0.
+        let x: Vec<f64> = (0..40).map(|i| 100.0 + i as f64).collect();
+        let y: Vec<f64> = (0..35).map(|i| i as f64).collect();
+        let r = brunner_munzel_test(&x, &y, Alternative::Greater, 0.95, 999, 3).unwrap();
+        assert_eq!(r.bm.inference, BmInference::ZeroVariance);
+        assert_eq!(r.bm.estimate, 1.0);
+        assert_eq!(
+            r.p_detail,
+            super::super::RankPMethod::StudentisedPermutationSampled
+        );
+        // Only the observed split is as extreme, so no random split is
+        // (with overwhelming probability): p = 1/(1 + B).
+        assert_eq!(r.p, 1.0 / 1000.0);
+        assert_eq!((r.interval.low, r.interval.high), (Some(0.0), Some(1.0)));
+    }
+
+    #[test]
+    fn intervals_stay_inside_zero_and_one() {
+        let x = [5.0, 6.0, 7.0, 8.0, 9.0, 4.5];
+        let y = [1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 0.5];
+        for alt in [
+            Alternative::TwoSided,
+            Alternative::Greater,
+            Alternative::Less,
+        ] {
+            let r = brunner_munzel_test(&x, &y, alt, 0.99, 100, 1).unwrap();
+            let (lo, hi) = (r.interval.low.unwrap(), r.interval.high.unwrap());
+            assert!(
+                (0.0..=1.0).contains(&lo) && (0.0..=1.0).contains(&hi) && lo <= hi,
+                "{alt:?}"
+            );
+        }
     }
 }

@@ -8,6 +8,10 @@
 //!   applied to the rank test; Hollander & Wolfe 1999, §4.3, for the
 //!   shifted test). The matching interval is the distribution-free
 //!   Hodges–Lehmann interval at 1 − 2α.
+//! * Pseudo-median of paired differences (or of one sample minus its
+//!   reference): the same construction with the signed-rank test, on
+//!   `d − low` (greater) and `d − high` (less), and the Hodges–Lehmann
+//!   interval of the differences at 1 − 2α.
 //! * Probability of superiority θ = P(Y < X) + ½P(X = Y): Munzel &
 //!   Hauschke (2003), "A nonparametric test for proving noninferiority in
 //!   clinical trials with ordered categorical data", Biometrical Journal
@@ -21,6 +25,7 @@ use super::brunner_munzel::{brunner_munzel, BmInference};
 use super::dist::{t_cdf, t_sf};
 use super::mann_whitney::mann_whitney_with;
 use super::rank_tests::RankOptions;
+use super::wilcoxon::wilcoxon_signed_rank_with;
 use super::{Alternative, Decision, Interval, StatsError};
 use serde::{Deserialize, Serialize};
 
@@ -43,6 +48,9 @@ pub struct RankTost {
     pub interval: Interval,
     /// Whether equivalence is shown at α (p < α).
     pub decision: Decision,
+    /// The t statistics against the lower and upper bound and their df
+    /// (probability of superiority only; the shift tests use U or W+).
+    pub t: Option<([f64; 2], f64)>,
 }
 
 use super::equivalence::check;
@@ -76,6 +84,40 @@ pub fn tost_hodges_lehmann(
         estimate: both.estimate,
         interval: both.interval,
         decision: Decision::at(p, alpha),
+        t: None,
+    })
+}
+
+/// TOST for the pseudo-median of `d` (paired differences, or one sample
+/// minus its reference) within `(low, high)` at `alpha`, with the
+/// signed-rank conventions of `options` (zeros are those of `d − bound`).
+///
+/// Errors: as [`wilcoxon_signed_rank_with`], and as
+/// [`tost_hodges_lehmann`] for the bounds and alpha.
+pub fn tost_signed_rank(
+    d: &[f64],
+    low: f64,
+    high: f64,
+    alpha: f64,
+    options: &RankOptions,
+) -> Result<RankTost, StatsError> {
+    check(low, high, alpha)?;
+    let level = 1.0 - alpha;
+    let shifted = |by: f64| d.iter().map(|v| v - by).collect::<Vec<f64>>();
+    let lower = wilcoxon_signed_rank_with(&shifted(low), Alternative::Greater, level, options)?;
+    let upper = wilcoxon_signed_rank_with(&shifted(high), Alternative::Less, level, options)?;
+    let both = wilcoxon_signed_rank_with(d, Alternative::TwoSided, 1.0 - 2.0 * alpha, options)?;
+    let p = lower.p.max(upper.p);
+    Ok(RankTost {
+        low,
+        high,
+        p_lower: lower.p,
+        p_upper: upper.p,
+        p,
+        estimate: both.estimate,
+        interval: both.interval,
+        decision: Decision::at(p, alpha),
+        t: None,
     })
 }
 
@@ -102,8 +144,9 @@ pub fn tost_prob_superiority(
     let BmInference::TApproximation { df, interval, .. } = r.inference else {
         return Err(StatsError::ZeroVariance);
     };
-    let p_lower = t_sf((r.estimate - low) / r.se, df);
-    let p_upper = t_cdf((r.estimate - high) / r.se, df);
+    let (t_lower, t_upper) = ((r.estimate - low) / r.se, (r.estimate - high) / r.se);
+    let p_lower = t_sf(t_lower, df);
+    let p_upper = t_cdf(t_upper, df);
     let p = p_lower.max(p_upper);
     Ok(RankTost {
         low,
@@ -114,6 +157,7 @@ pub fn tost_prob_superiority(
         estimate: r.estimate,
         interval,
         decision: Decision::at(p, alpha),
+        t: Some(([t_lower, t_upper], df)),
     })
 }
 
@@ -129,6 +173,18 @@ mod tests {
         let y: Vec<f64> = (0..11).map(|i| (i * 5 % 11) as f64 + 0.1).collect();
         for (low, high) in [(-3.0, 3.0), (-1.0, 1.0), (-6.0, 0.5), (-0.5, 6.0)] {
             let t = tost_hodges_lehmann(&x, &y, low, high, 0.05, &RankOptions::default()).unwrap();
+            let inside = t.interval.low.unwrap() > low && t.interval.high.unwrap() < high;
+            assert_eq!(inside, t.decision.rejects(), "({low}, {high})");
+        }
+    }
+
+    #[test]
+    fn signed_rank_tost_agrees_with_its_interval() {
+        // Untied differences without zeros: exact p on both sides, so
+        // inclusion of the 1 − 2α interval and rejection coincide.
+        let d: Vec<f64> = (0..14).map(|i| (i * 5 % 14) as f64 - 6.3).collect();
+        for (low, high) in [(-4.0, 4.0), (-1.0, 1.0), (-8.0, 0.2), (-0.1, 9.0)] {
+            let t = tost_signed_rank(&d, low, high, 0.05, &RankOptions::default()).unwrap();
             let inside = t.interval.low.unwrap() > low && t.interval.high.unwrap() < high;
             assert_eq!(inside, t.decision.rejects(), "({low}, {high})");
         }

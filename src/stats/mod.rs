@@ -84,6 +84,12 @@ pub enum PMethod {
     Exact,
     /// From the normal approximation (with tie and continuity correction).
     NormalApproximation,
+    /// From a seeded random sample of the permutations (Brunner–Munzel's
+    /// studentised permutation p when there are too many to enumerate).
+    RandomPermutations,
+    /// From Student's t with Satterthwaite df (Brunner–Munzel in larger
+    /// samples).
+    TApproximation,
 }
 
 /// How a rank test's p value was obtained, in the detail a reader needs:
@@ -100,14 +106,26 @@ pub enum RankPMethod {
     /// Normal approximation with tie-corrected variance (and continuity
     /// correction unless switched off).
     NormalApproximation,
+    /// Brunner–Munzel: every split of the pooled sample enumerated, the
+    /// studentised statistic recomputed on each (Neubert & Brunner 2007).
+    StudentisedPermutation,
+    /// Brunner–Munzel: the studentised statistic on a seeded random sample
+    /// of splits, p = (1 + b)/(1 + B).
+    StudentisedPermutationSampled,
+    /// Brunner–Munzel: Student's t with Satterthwaite df.
+    TApproximation,
 }
 
 impl RankPMethod {
     /// The coarse exact/approximate distinction.
     pub fn coarse(self) -> PMethod {
         match self {
-            RankPMethod::Exact | RankPMethod::ExactWithTies => PMethod::Exact,
+            RankPMethod::Exact
+            | RankPMethod::ExactWithTies
+            | RankPMethod::StudentisedPermutation => PMethod::Exact,
             RankPMethod::NormalApproximation => PMethod::NormalApproximation,
+            RankPMethod::StudentisedPermutationSampled => PMethod::RandomPermutations,
+            RankPMethod::TApproximation => PMethod::TApproximation,
         }
     }
 }

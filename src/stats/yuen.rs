@@ -30,6 +30,7 @@
 //! One sort per sample, O(n log n).
 
 use super::dist::{normal_pdf, normal_quantile, t_quantile, t_sf};
+use super::equivalence::Tost;
 use super::rank_tests::check_level;
 use super::{ensure_finite, p_from_symmetric, Alternative, Interval, StatsError};
 use serde::{Deserialize, Serialize};
@@ -211,6 +212,37 @@ pub fn trimmed_t_paired(
     }
     let d: Vec<f64> = first.iter().zip(second).map(|(a, b)| a - b).collect();
     trimmed_t_one_sample(&d, 0.0, trim, alt, level)
+}
+
+/// Two one-sided tests on a trimmed-mean estimate within `(low, high)` at
+/// `alpha`: Schuirmann's (1987) construction, "A comparison of the two
+/// one-sided tests procedure and the power approach for assessing the
+/// equivalence of average bioavailability", Journal of Pharmacokinetics
+/// and Biopharmaceutics 15(6), 657–680, applied to the trimmed t in place
+/// of the t (common practice). `r` is the two-sided result at
+/// 1 − 2α, whose estimate, standard error and df both one-sided tests
+/// share; `t_lower = (estimate − low)/se`, `t_upper = (estimate − high)/se`.
+///
+/// Errors: bounds not finite or not in order, alpha outside (0, 0.5)
+/// (`BadParameter`, `NonFinite`).
+pub fn tost_trimmed(r: &TrimmedT, low: f64, high: f64, alpha: f64) -> Result<Tost, StatsError> {
+    super::equivalence::check(low, high, alpha)?;
+    let t_lower = (r.estimate - low) / r.se;
+    let t_upper = (r.estimate - high) / r.se;
+    let p_lower = t_sf(t_lower, r.df);
+    let p_upper = super::dist::t_cdf(t_upper, r.df);
+    Ok(Tost {
+        low,
+        high,
+        t_lower,
+        t_upper,
+        df: r.df,
+        p_lower,
+        p_upper,
+        p: p_lower.max(p_upper),
+        estimate: r.estimate,
+        interval: r.interval,
+    })
 }
 
 #[cfg(test)]

@@ -28,6 +28,12 @@ the JSON.
   statsmodels rank_compare_2indep(x, y).tost_prob_superior(low, upp).
 * Equivalence on the Hodges-Lehmann shift: scipy.stats.mannwhitneyu
   (method='exact', untied data) on x - low (greater) and x - high (less).
+* Equivalence on the pseudo-median of paired differences:
+  scipy.stats.wilcoxon (method='exact', untied data without zeros) on
+  d - low (greater) and d - high (less).
+* Equivalence on trimmed means: scipy.stats.ttest_ind(equal_var=False,
+  trim=...) on x - low (greater) and x - high (less) for two groups; the
+  one-sample pieces above, shifted by each bound, for one sample.
 * Signed-rank test with zeros kept in the ranking (Pratt 1959), normal
   approximation with tie and continuity correction:
   scipy.stats.wilcoxon(zero_method='pratt', method='approx', correction=True).
@@ -238,6 +244,37 @@ def tost_hl_case(name, x, y, low, high):
     }
 
 
+def tost_signed_rank_case(name, d, low, high):
+    da = np.asarray(d, float)
+    assert len(set(np.abs(da - low))) == len(d) and 0 not in list(da - low)
+    assert len(set(np.abs(da - high))) == len(d) and 0 not in list(da - high)
+    pl = stats.wilcoxon(da - low, alternative="greater", method="exact").pvalue
+    pu = stats.wilcoxon(da - high, alternative="less", method="exact").pvalue
+    return {"name": name, "d": fl(d), "low": low, "high": high,
+            "p_lower": float(pl), "p_upper": float(pu), "p": float(max(pl, pu))}
+
+
+def tost_yuen_case(name, x, y, g, low, high):
+    xa = np.asarray(x, float)
+    lo = stats.ttest_ind(xa - low, y, equal_var=False, trim=g, alternative="greater")
+    up = stats.ttest_ind(xa - high, y, equal_var=False, trim=g, alternative="less")
+    return {"name": name, "x": fl(x), "y": fl(y), "trim": g, "low": low, "high": high,
+            "t_lower": float(lo.statistic), "t_upper": float(up.statistic), "df": float(lo.df),
+            "p_lower": float(lo.pvalue), "p_upper": float(up.pvalue),
+            "p": float(max(lo.pvalue, up.pvalue))}
+
+
+def tost_trimmed_one_case(name, x, mu, g, low, high):
+    tm, s2, n, h = trimmed_parts(x, g)
+    se = math.sqrt((n - 1) * s2 / (h * (h - 1)))
+    df = h - 1
+    tl, tu = (tm - mu - low) / se, (tm - mu - high) / se
+    pl, pu = float(stats.t.sf(tl, df)), float(stats.t.cdf(tu, df))
+    return {"name": name, "x": fl(x), "reference": mu, "trim": g, "low": low, "high": high,
+            "t_lower": tl, "t_upper": tu, "df": float(df),
+            "p_lower": pl, "p_upper": pu, "p": max(pl, pu)}
+
+
 def pratt_case(name, d):
     out = []
     for alt in ALTS:
@@ -292,6 +329,32 @@ def main():
     pratt += pratt_case("many_zeros", [0] * 8 + [1, 2, 3, -1, 4, 5, 2, 6, 1, 3])
     pratt += pratt_case("likert_diffs", list(rng.integers(-2, 4, 40)))
 
+    eq_sr = []
+    for i, (lo, hi) in enumerate([(-1.0, 1.0), (-0.4, 0.4), (-2.5, 0.6)]):
+        d = list((rng.normal(0.1, 1.0, 12 + 2 * i)).round(4) + 0.00003)
+        eq_sr.append(tost_signed_rank_case(f"sr_{i}", d, lo, hi))
+    eq_tr = []
+    for i, (g, lo, hi) in enumerate([(0.2, -1.0, 1.0), (0.1, -0.5, 0.8), (0.25, -2.0, 2.0)]):
+        x = list(rng.standard_t(3, 18 + i).round(3) + 0.2)
+        y = list(rng.standard_t(3, 22).round(3))
+        eq_tr.append(tost_yuen_case(f"yuen_{i}", x, y, g, lo, hi))
+    eq_tr1 = []
+    for i, (g, lo, hi) in enumerate([(0.2, -1.0, 1.0), (0.1, -0.3, 0.9)]):
+        d = list(rng.standard_t(2, 17 + i).round(3) + 0.1)
+        eq_tr1.append(tost_trimmed_one_case(f"trimmed_one_{i}", d, 0.0, g, lo, hi))
+    eq_tr1.append(tost_trimmed_one_case("trimmed_reference", [12.0, 15.5, 9.0, 14.0, 13.5, 60.0, 11.0, 12.5], 10.0, 0.2, -4.0, 4.0))
+
+    # Groups of at least 30, where attest takes p from the t
+    # approximation; the skewed pair is far from normal (Shapiro-Wilk
+    # rejects in a group), so a `checked` plan reaches its rank test.
+    x = rng.normal(0.4, 1.0, 35).round(3)
+    y = rng.normal(0.0, 2.5, 42).round(3)
+    bm += bm_case("large_35x42", list(x), list(y))
+    x = rng.lognormal(0.3, 1.0, 40).round(3)
+    y = rng.lognormal(0.0, 1.0, 45).round(3)
+    assert min(stats.shapiro(x).pvalue, stats.shapiro(y).pvalue) < 0.01
+    bm += bm_case("skewed_40x45", list(x), list(y))
+
     doc = {
         "scipy_version": scipy.__version__,
         "statsmodels_version": statsmodels.__version__,
@@ -303,6 +366,9 @@ def main():
         "tost_prob_superiority": eq_ps,
         "tost_hodges_lehmann": eq_hl,
         "wilcoxon_pratt_normal": pratt,
+        "tost_signed_rank": eq_sr,
+        "tost_trimmed_two": eq_tr,
+        "tost_trimmed_one": eq_tr1,
     }
     with open(OUT, "w") as f:
         json.dump(doc, f, indent=1)

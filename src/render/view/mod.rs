@@ -19,7 +19,7 @@ use self::apa::{sym, two};
 use self::sentence::method_name;
 use super::markdown::escape;
 use crate::results::{
-    Branch, Decision, Design, HypothesisResult, LockState, Method, Results, SpreadMethod,
+    Branch, Decision, Design, HypothesisResult, LockState, Results, SpreadMethod,
 };
 use minijinja::Value;
 use serde::Serialize;
@@ -285,6 +285,28 @@ fn units(h: &HypothesisResult) -> String {
         .unwrap_or_default()
 }
 
+/// An estimate in a table cell: the value with its units and bounds for
+/// a difference; a probability of superiority is named, since it is not
+/// a difference.
+fn estimate_cell(e: &crate::results::Estimate, h: &HypothesisResult) -> String {
+    let fmt = sentence::estimate_number(e.name);
+    if e.name.in_outcome_units() {
+        format!(
+            "{}{} {}",
+            fmt(e.value),
+            units(h),
+            apa::bounds(e.ci_low, e.ci_high, fmt)
+        )
+    } else {
+        format!(
+            "{} {} {}",
+            sentence::estimate_name(e.name),
+            fmt(e.value),
+            apa::bounds(e.ci_low, e.ci_high, fmt)
+        )
+    }
+}
+
 fn glance(r: &Results, h: &HypothesisResult) -> GlanceRow {
     let e = &h.estimate;
     let fx = &h.effect;
@@ -300,12 +322,7 @@ fn glance(r: &Results, h: &HypothesisResult) -> GlanceRow {
         id: h.id.clone(),
         claim: h.claim.clone(),
         method: md(method_name(h.method)),
-        difference: md(format!(
-            "{}{} {}",
-            two(e.value),
-            units(h),
-            apa::bounds(e.ci_low, e.ci_high, two)
-        )),
+        difference: md(estimate_cell(e, h)),
         effect: md(sentence::effect_with_bounds(fx)),
         p: md(p),
         verdict: verdict(h).into(),
@@ -341,12 +358,7 @@ fn hypothesis(
                 md(method_name(t.method)),
                 md(sentence::statistic(t)),
                 md(apa::p_number(t.p)),
-                md(format!(
-                    "{}{} {}",
-                    two(t.estimate.value),
-                    units(h),
-                    apa::bounds(t.estimate.ci_low, t.estimate.ci_high, two)
-                )),
+                md(estimate_cell(&t.estimate, h)),
                 md(t.effects
                     .first()
                     .map(|e| sentence::effect(e, t.estimate.confidence))
@@ -469,11 +481,11 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
             sentence::statistic(&h.test),
             apa::p_clause(h.test.p)
         ),
-        None => format!(
+        None => capital(&format!(
             "{}, {}.",
             sentence::statistic(&h.test),
             sentence::p_of(h, r.correction_applied)
-        ),
+        )),
     };
     let mut out = vec![
         md(format!("Method used: {}{planned}.", method_name(h.method))),
@@ -485,7 +497,7 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
     if h.test.p == 0.0 {
         out.push(md(apa::p_underflow(h.test.log10_p)));
     }
-    if let Some(rule) = sentence::rank_conventions(&h.test) {
+    if let Some(rule) = sentence::conventions(&h.test) {
         out.push(md(rule));
     }
     if let Some(name) = sentence::correction_method(r.correction_applied) {
@@ -496,12 +508,16 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
         )));
     }
     if let Some(eq) = &h.equivalence {
+        let fmt = sentence::estimate_number(eq.on);
         out.push(md(format!(
-            "Equivalence (two one-sided tests, bounds {} to {}{}): against the lower bound {}({}) = {}, {}; against the upper bound {}({}) = {}, {}; the equivalence {} is the larger of the two, {}.",
-            two(eq.low), two(eq.high), units(h),
-            sym("t"), apa::df(eq.df, h.method == Method::WelchT), two(eq.t_lower), apa::p_clause(eq.p_lower),
-            sym("t"), apa::df(eq.df, h.method == Method::WelchT), two(eq.t_upper), apa::p_clause(eq.p_upper),
-            sym("p"), apa::p_number(eq.p),
+            "Equivalence on the {} (bounds {} to {}{}), {}; the equivalence {} is the larger of the two, {}.",
+            sentence::estimate_name(eq.on),
+            fmt(eq.low),
+            fmt(eq.high),
+            if eq.on.in_outcome_units() { units(h) } else { String::new() },
+            sentence::equivalence_tests(h, eq, true),
+            sym("p"),
+            apa::p_number(eq.p),
         )));
     }
     out.push(md(format!(
@@ -521,10 +537,18 @@ fn size_lines(h: &HypothesisResult) -> Vec<Value> {
         out.push(md(capital(&sentence::effect(e, h.estimate.confidence))));
     }
     if let Some(eq) = &h.equivalence {
+        let what = match eq.on {
+            crate::results::EstimateKind::MeanDifference => "difference",
+            other => sentence::estimate_name(other),
+        };
         out.push(md(format!(
-            "For equivalence: {} of the difference {}.",
+            "For equivalence: {} of the {what} {}.",
             apa::level(eq.ci_level),
-            apa::bounds(Some(eq.ci_low), Some(eq.ci_high), two)
+            apa::bounds(
+                Some(eq.ci_low),
+                Some(eq.ci_high),
+                sentence::estimate_number(eq.on)
+            )
         )
         .replace("% of", "% CI of")));
     }
@@ -797,15 +821,23 @@ fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
         ""
     };
     let name = sentence::estimate_name(e.name);
+    let (null_words, axis) = if e.name.in_outcome_units() {
+        ("no difference", format!("{name}{unit}, {a} − {b}"))
+    } else {
+        (
+            "½, where neither group tends to have the larger values",
+            format!("{name}, {a} over {b}"),
+        )
+    };
     let note = format!(
-        "The {name} (dot) with its {:.0}% confidence interval (bar); the dashed line marks no difference.{open}{eq}",
+        "The {name} (dot) with its {:.0}% confidence interval (bar); the dashed line marks {null_words}.{open}{eq}",
         e.confidence * 100.0
     );
     out.push(figure(
         FigureRole::Difference,
         "The difference and its interval",
         note,
-        format!("{name}{unit}, {a} − {b}"),
+        axis,
         "",
         Vec::new(),
     ));

@@ -8,8 +8,8 @@
 use super::apa::{self, sym, two};
 use crate::render::markdown::escape;
 use crate::results::{
-    Decision, Design, EffectKind, EffectSize, Estimate, EstimateKind, GroupSummary,
-    HypothesisResult, Method, StatisticKind, TestResult,
+    Decision, Design, EffectKind, EffectSize, EquivalenceResult, Estimate, EstimateKind,
+    GroupSummary, HypothesisResult, Method, StatisticKind, TestResult,
 };
 use crate::stats::multiplicity::Correction;
 use crate::stats::rank_tests::ZeroRule;
@@ -24,6 +24,8 @@ pub(crate) fn method_name(method: Method) -> String {
         Method::PairedT => "paired t-test",
         Method::WilcoxonSignedRank => "Wilcoxon signed-rank test",
         Method::OneSampleT => "one-sample t-test",
+        Method::BrunnerMunzel => "Brunner–Munzel test",
+        Method::TrimmedT => "trimmed-mean t-test",
         Method::Checked => "chosen by the checks, `checked`",
     }
     .into()
@@ -35,32 +37,82 @@ pub(crate) fn estimate_name(kind: EstimateKind) -> &'static str {
         EstimateKind::MeanDifference => "mean difference",
         EstimateKind::HodgesLehmannShift => "Hodges–Lehmann shift",
         EstimateKind::HodgesLehmannEstimate => "Hodges–Lehmann estimate",
+        EstimateKind::TrimmedMeanDifference => "trimmed mean difference",
+        EstimateKind::TrimmedMeanOfDifferences => "trimmed mean of the differences",
+        EstimateKind::ProbabilityOfSuperiority => "probability of superiority",
     }
 }
 
-/// The statistic with its df: `Welch's *t*(97.31) = 2.71`, `*t*(48) = 2.71`,
-/// `Mann–Whitney *U* = 312, *z* = 2.31`, `Wilcoxon *W*+ = 123`.
-pub(crate) fn statistic(test: &TestResult) -> String {
-    let welch = test.method == Method::WelchT;
-    let rank = |who: &str, s: String| {
-        let mut out = format!("{who} {s} = {}", apa::rank_statistic(test.statistic));
-        if let Some(z) = test.z {
-            out.push_str(&format!(", {} = {}", sym("z"), two(z)));
-        }
-        out
+/// The number rule of an estimate: two decimals for a difference, no
+/// leading zero for a probability (APA 7 §6.36, values that cannot
+/// exceed 1).
+pub(crate) fn estimate_number(kind: EstimateKind) -> fn(f64) -> String {
+    if kind.in_outcome_units() {
+        two
+    } else {
+        |x| apa::bounded(x, 2)
+    }
+}
+
+/// Whether a test's df are fractional (Satterthwaite-type) and so are
+/// written with two decimals.
+fn fractional_df(test: &TestResult) -> bool {
+    match test.method {
+        Method::WelchT | Method::BrunnerMunzel => true,
+        Method::TrimmedT => test.df.is_some_and(|d| d.fract() != 0.0),
+        Method::StudentT
+        | Method::PairedT
+        | Method::OneSampleT
+        | Method::MannWhitney
+        | Method::WilcoxonSignedRank
+        | Method::Checked => false,
+    }
+}
+
+/// The statistic without the method's name: `*t*(97.31) = 2.71`,
+/// `*U* = 312`, `*W*+ = 123`; for an undefined statistic, words.
+pub(crate) fn bare_statistic(test: &TestResult) -> String {
+    let Some(value) = test.statistic else {
+        return "the statistic is undefined, since neither group's placements vary".into();
     };
     match test.statistic_name {
-        StatisticKind::U => rank("Mann–Whitney", sym("U")),
-        StatisticKind::WPlus => rank("Wilcoxon", format!("{}+", sym("W"))),
+        StatisticKind::U => format!("{} = {}", sym("U"), apa::rank_statistic(value)),
+        StatisticKind::WPlus => format!("{}+ = {}", sym("W"), apa::rank_statistic(value)),
         StatisticKind::T => {
             let df = test
                 .df
-                .map(|d| format!("({})", apa::df(d, welch)))
+                .map(|d| format!("({})", apa::df(d, fractional_df(test))))
                 .unwrap_or_default();
-            let who = if welch { "Welch's " } else { "" };
-            format!("{who}{}{df} = {}", sym("t"), two(test.statistic))
+            format!("{}{df} = {}", sym("t"), two(value))
         }
     }
+}
+
+/// The statistic with its df and the test's name where the symbol alone
+/// would not say it: `Welch's *t*(97.31) = 2.71`, `*t*(48) = 2.71`,
+/// `Mann–Whitney *U* = 312, *z* = 2.31`, `Wilcoxon *W*+ = 123`,
+/// `Brunner–Munzel *t*(17.42) = 2.10`, `trimmed *t*(11) = 1.90`.
+pub(crate) fn statistic(test: &TestResult) -> String {
+    let who = match test.method {
+        Method::WelchT => "Welch's ",
+        Method::MannWhitney => "Mann–Whitney ",
+        Method::WilcoxonSignedRank => "Wilcoxon ",
+        Method::BrunnerMunzel => "Brunner–Munzel ",
+        // Yuen's two-group test has Welch-type (fractional) df; the
+        // one-sample and paired trimmed t have h − 1.
+        Method::TrimmedT if fractional_df(test) => "Yuen's trimmed ",
+        Method::TrimmedT => "trimmed ",
+        Method::StudentT | Method::PairedT | Method::OneSampleT | Method::Checked => "",
+    };
+    let mut out = if test.statistic.is_some() {
+        format!("{who}{}", bare_statistic(test))
+    } else {
+        format!("{who}statistic undefined (neither group's placements vary)")
+    };
+    if let Some(z) = test.z {
+        out.push_str(&format!(", {} = {}", sym("z"), two(z)));
+    }
+    out
 }
 
 /// An effect size's symbol and the number rule its values follow.
@@ -72,6 +124,7 @@ fn effect_symbol(kind: EffectKind) -> (String, fn(f64) -> String) {
         EffectKind::DZ => (format!("{}z", sym("d")), two),
         EffectKind::RankBiserial => (format!("rank-biserial {}", sym("r")), bounded),
         EffectKind::ProbabilityOfSuperiority => ("probability of superiority".into(), bounded),
+        EffectKind::RobustD => (format!("robust {}R", sym("d")), two),
     }
 }
 
@@ -100,14 +153,19 @@ pub(crate) fn effect_with_bounds(e: &EffectSize) -> String {
     out
 }
 
-/// An estimate of the difference with its interval and units.
+/// An estimate of the difference with its interval and units (none for
+/// a probability).
 pub(crate) fn estimate(e: &Estimate, units: Option<&str>) -> String {
-    let u = units.map(|u| format!(" {}", escape(u))).unwrap_or_default();
+    let u = units
+        .filter(|_| e.name.in_outcome_units())
+        .map(|u| format!(" {}", escape(u)))
+        .unwrap_or_default();
+    let fmt = estimate_number(e.name);
     format!(
         "{} = {}{u}, {}",
         estimate_name(e.name),
-        two(e.value),
-        apa::ci(e.confidence, e.ci_low, e.ci_high, two)
+        fmt(e.value),
+        apa::ci(e.confidence, e.ci_low, e.ci_high, fmt)
     )
 }
 
@@ -190,7 +248,7 @@ pub(crate) fn one_sentence(h: &HypothesisResult, correction: Correction) -> Stri
     let higher = match h.alternative {
         Alternative::Greater => true,
         Alternative::Less => false,
-        Alternative::TwoSided => h.estimate.value >= 0.0,
+        Alternative::TwoSided => h.estimate.value >= h.estimate.name.null_value(),
     };
     let word = match (rank, higher) {
         (false, true) => "higher",
@@ -244,16 +302,18 @@ pub(crate) fn one_sentence(h: &HypothesisResult, correction: Correction) -> Stri
     )
 }
 
-fn equivalence_sentence(h: &HypothesisResult, eq: &crate::results::EquivalenceResult) -> String {
+fn equivalence_sentence(h: &HypothesisResult, eq: &EquivalenceResult) -> String {
     let outcome = escape(&h.outcome_label);
     let (a, b) = (escape(&h.labels[0]), escape(&h.labels[1]));
-    let u = h
-        .units
-        .as_deref()
-        .map(|u| format!(" {}", escape(u)))
-        .unwrap_or_default();
-    let welch = h.method == Method::WelchT;
-    let df = apa::df(eq.df, welch);
+    let u = if eq.on.in_outcome_units() {
+        h.units
+            .as_deref()
+            .map(|u| format!(" {}", escape(u)))
+            .unwrap_or_default()
+    } else {
+        String::new()
+    };
+    let fmt = estimate_number(eq.on);
     let verdict = if h.decision == Decision::Reject {
         "was equivalent within the bounds"
     } else {
@@ -263,48 +323,125 @@ fn equivalence_sentence(h: &HypothesisResult, eq: &crate::results::EquivalenceRe
         Design::OneSample => format!("{a} and the reference value"),
         Design::Independent | Design::Paired => format!("{a} and {b}"),
     };
+    let what = match eq.on {
+        EstimateKind::MeanDifference => "difference".to_string(),
+        other => estimate_name(other).to_string(),
+    };
     format!(
-        "The difference in {outcome} between {between} {verdict} of {} and {}{u} (two one-sided tests: {t}({df}) = {}, {}; {t}({df}) = {}, {}); difference = {}{u}, {}.",
-        two(eq.low),
-        two(eq.high),
-        two(eq.t_lower),
-        apa::p_clause(eq.p_lower),
-        two(eq.t_upper),
-        apa::p_clause(eq.p_upper),
-        two(h.estimate.value),
-        apa::ci(eq.ci_level, Some(eq.ci_low), Some(eq.ci_high), two),
-        t = sym("t"),
+        "The {what} in {outcome} between {between} {verdict} of {} and {}{u} ({}); {what} = {}{u}, {}.",
+        fmt(eq.low),
+        fmt(eq.high),
+        equivalence_tests(h, eq, false),
+        fmt(h.estimate.value),
+        apa::ci(eq.ci_level, Some(eq.ci_low), Some(eq.ci_high), fmt),
+    )
+}
+
+/// The two one-sided tests of an equivalence result, in words: with
+/// their t statistics where they have them, otherwise naming the shifted
+/// rank test. `long` adds "against the lower/upper bound".
+pub(crate) fn equivalence_tests(
+    h: &HypothesisResult,
+    eq: &EquivalenceResult,
+    long: bool,
+) -> String {
+    let (lower, upper) = if long {
+        ("against the lower bound ", "against the upper bound ")
+    } else {
+        ("", "")
+    };
+    let fractional = fractional_df(&h.test);
+    let one = |t: Option<f64>, p: f64| match (t, eq.df) {
+        (Some(t), Some(df)) => format!(
+            "{}({}) = {}, {}",
+            sym("t"),
+            apa::df(df, fractional),
+            two(t),
+            apa::p_clause(p)
+        ),
+        _ => apa::p_clause(p),
+    };
+    let name = match (eq.t_lower, h.method) {
+        (Some(_), _) => "two one-sided tests",
+        (None, Method::WilcoxonSignedRank) => {
+            "two one-sided signed-rank tests on the shifted differences"
+        }
+        (None, _) => "two one-sided Mann–Whitney tests on the shifted values",
+    };
+    format!(
+        "{name}: {lower}{}; {upper}{}",
+        one(eq.t_lower, eq.p_lower),
+        one(eq.t_upper, eq.p_upper)
     )
 }
 
 /// How a test's p was obtained, as the clause after "*p*" (none for t
 /// tests, whose p is from the t distribution as the statistic says).
-pub(crate) fn p_origin(t: &TestResult) -> Option<&'static str> {
+pub(crate) fn p_origin(t: &TestResult) -> Option<String> {
     let detail = match (t.p_detail, t.p_method) {
         (Some(d), _) => d,
         (None, Some(PMethod::Exact)) => RankPMethod::Exact,
         (None, Some(PMethod::NormalApproximation)) => RankPMethod::NormalApproximation,
+        (None, Some(PMethod::RandomPermutations)) => RankPMethod::StudentisedPermutationSampled,
+        (None, Some(PMethod::TApproximation)) => RankPMethod::TApproximation,
         (None, None) => return None,
     };
+    let splits = t.permutations.unwrap_or(0);
     Some(match (detail, t.continuity_correction) {
-        (RankPMethod::Exact, _) => "is exact, from the permutation distribution of the statistic",
+        (RankPMethod::StudentisedPermutation, _) => format!(
+            "is exact, from all {splits} ways of splitting the pooled values into two groups of these sizes (the studentised permutation test of Neubert & Brunner, 2007)"
+        ),
+        (RankPMethod::StudentisedPermutationSampled, _) => format!(
+            "is from {splits} random splits of the pooled values into two groups of these sizes, drawn from the plan's seed (the studentised permutation test of Neubert & Brunner, 2007)"
+        ),
+        (RankPMethod::TApproximation, _) => {
+            "is from Student's *t* with Satterthwaite's degrees of freedom (Brunner & Munzel, 2000)".into()
+        }
+        (RankPMethod::Exact, _) => {
+            "is exact, from the permutation distribution of the statistic".into()
+        }
         (RankPMethod::ExactWithTies, _) => {
-            "is exact, from the permutation distribution of the statistic given the ties"
+            "is exact, from the permutation distribution of the statistic given the ties".into()
         }
         (RankPMethod::NormalApproximation, Some(false)) => {
-            "is from the normal approximation, corrected for ties, without a continuity correction (as the plan states)"
+            "is from the normal approximation, corrected for ties, without a continuity correction (as the plan states)".into()
         }
         (RankPMethod::NormalApproximation, _) => {
             "is from the normal approximation, corrected for ties and continuity"
         }
+        .into(),
     })
 }
 
-/// The zero-difference rule of a signed-rank test, in words, with the
-/// count it affected (none for other tests).
-pub(crate) fn rank_conventions(t: &TestResult) -> Option<String> {
+/// The conventions a test ran under, in words: the zero-difference rule
+/// of a signed-rank test with the count it affected, the trimming of a
+/// trimmed t, what Brunner–Munzel does when its variance is 0 (none for
+/// the other tests).
+pub(crate) fn conventions(t: &TestResult) -> Option<String> {
     match t.method {
         Method::WilcoxonSignedRank => {}
+        Method::TrimmedT => {
+            let share = format!("{:.0}%", t.trim.unwrap_or(0.0) * 100.0);
+            let whose = match t.estimate.name {
+                EstimateKind::TrimmedMeanOfDifferences => {
+                    "the differences are trimmed (the trimmed *t* of Tukey & McLaughlin, 1963, on the differences; this is the trimmed mean of the differences, not the difference of the two trimmed means)".to_string()
+                }
+                _ if t.df.is_some_and(|d| d.fract() != 0.0) => {
+                    "each group is trimmed (Yuen's 1974 test, with Welch-type degrees of freedom)".to_string()
+                }
+                _ => "the values are trimmed (the trimmed *t* of Tukey & McLaughlin, 1963)".to_string(),
+            };
+            return Some(format!(
+                "{share} of the values are cut from each end before the means are taken: {whose}. The effect, robust {}R, is the trimmed difference over the winsorised standard deviation, rescaled to estimate Cohen's {} under normality (Algina, Keselman & Penfield, 2005).",
+                sym("d"),
+                sym("d")
+            ));
+        }
+        Method::BrunnerMunzel => {
+            return t.statistic.is_none().then(|| {
+                "Neither group's placements vary (for example, the groups do not overlap), so the variance estimate is 0 and the Brunner–Munzel statistic is undefined; *p* is therefore taken from the permutation distribution and the interval is the whole range of a probability, 0 to 1.".to_string()
+            });
+        }
         Method::StudentT
         | Method::WelchT
         | Method::PairedT
