@@ -74,3 +74,27 @@ fn exact_with_ties_at_the_bound() {
         t.p
     );
 }
+
+#[test]
+#[ignore = "benchmark; run with tests/bench/ties.sh"]
+fn brunner_munzel_permutation_at_the_bound() {
+    use attest::stats::brunner_munzel::{
+        brunner_munzel_test, PERMUTATION_BELOW, PERMUTATION_MAX_N,
+    };
+    // The costliest case the rule sends to the permutation p: the smaller
+    // group just below PERMUTATION_BELOW, the pooled sample at
+    // PERMUTATION_MAX_N, the default 10 000 random splits.
+    let n1 = PERMUTATION_BELOW - 1;
+    let n2 = PERMUTATION_MAX_N - n1;
+    let x = likert(n1, 7, 6);
+    let y = likert(n2, 7, 7);
+    let start = Instant::now();
+    let t = brunner_munzel_test(&x, &y, Alternative::TwoSided, 0.95, 10_000, 1).unwrap();
+    let took = start.elapsed();
+    assert_eq!(t.p_detail, RankPMethod::StudentisedPermutationSampled);
+    println!(
+        "brunner-munzel {n1} x {n2}  10 000 random splits  {:>8.1} ms  p = {:.6}",
+        took.as_secs_f64() * 1e3,
+        t.p
+    );
+}
