@@ -400,19 +400,25 @@ fn run_method(
         wilcoxon::wilcoxon_signed_rank_with, yuen,
     };
     let opts = &settings.rank;
-    let t_result = |name: Method, t: tt::TTest, effects: Vec<EffectSize>| TestResult {
+    // A test whose statistic is t-distributed, with its estimate of kind
+    // `kind`; the other fields are the ones no t-shaped test fills.
+    let t_shaped = |name: Method,
+                    (t, df, p): (f64, f64, f64),
+                    kind: EstimateKind,
+                    (value, interval): (f64, stats::Interval),
+                    effects: Vec<EffectSize>| TestResult {
         method: name,
         statistic_name: StatisticKind::T,
-        statistic: Some(t.t),
-        df: Some(t.df),
+        statistic: Some(t),
+        df: Some(df),
         z: None,
-        p: t.p,
+        p,
         p_method: None,
         estimate: Estimate {
-            name: EstimateKind::MeanDifference,
-            value: t.estimate,
-            ci_low: t.interval.low,
-            ci_high: t.interval.high,
+            name: kind,
+            value,
+            ci_low: interval.low,
+            ci_high: interval.high,
             confidence: level,
         },
         effects,
@@ -421,9 +427,18 @@ fn run_method(
         zeros_ranked: None,
         p_detail: None,
         continuity_correction: None,
-        log10_p: (t.p > 0.0).then(|| t.p.log10()),
+        log10_p: (p > 0.0).then(|| p.log10()),
         trim: None,
         permutations: None,
+    };
+    let t_result = |name: Method, t: tt::TTest, effects: Vec<EffectSize>| {
+        t_shaped(
+            name,
+            (t.t, t.df, t.p),
+            EstimateKind::MeanDifference,
+            (t.estimate, t.interval),
+            effects,
+        )
     };
     let rank_result = |name: Method, r: rk::RankTest, stat: StatisticKind, est: EstimateKind| {
         let mut effects = vec![EffectSize {
@@ -530,34 +545,23 @@ fn run_method(
             // same scale as the Mann–Whitney row's effect.
             let to_r = |v: f64| 2.0 * v - 1.0;
             TestResult {
-                method: m,
-                statistic_name: StatisticKind::T,
                 statistic,
                 df,
-                z: None,
-                p: r.p,
                 p_method: Some(r.p_detail.coarse()),
-                estimate: Estimate {
-                    name: EstimateKind::ProbabilityOfSuperiority,
-                    value: r.bm.estimate,
-                    ci_low: r.interval.low,
-                    ci_high: r.interval.high,
-                    confidence: level,
-                },
-                effects: vec![EffectSize {
-                    name: EffectKind::RankBiserial,
-                    value: to_r(r.bm.estimate),
-                    ci_low: r.interval.low.map(to_r),
-                    ci_high: r.interval.high.map(to_r),
-                }],
-                zeros_dropped: None,
-                zero_rule: None,
-                zeros_ranked: None,
                 p_detail: Some(r.p_detail),
-                continuity_correction: None,
-                log10_p: (r.p > 0.0).then(|| r.p.log10()),
-                trim: None,
                 permutations: r.splits,
+                ..t_shaped(
+                    m,
+                    (0.0, 0.0, r.p),
+                    EstimateKind::ProbabilityOfSuperiority,
+                    (r.bm.estimate, r.interval),
+                    vec![EffectSize {
+                        name: EffectKind::RankBiserial,
+                        value: to_r(r.bm.estimate),
+                        ci_low: r.interval.low.map(to_r),
+                        ci_high: r.interval.high.map(to_r),
+                    }],
+                )
             }
         }
         Method::TrimmedT => {
@@ -576,34 +580,19 @@ fn run_method(
                 ),
             };
             TestResult {
-                method: m,
-                statistic_name: StatisticKind::T,
-                statistic: Some(t.statistic),
-                df: Some(t.df),
-                z: None,
-                p: t.p,
-                p_method: None,
-                estimate: Estimate {
-                    name: kind,
-                    value: t.estimate,
-                    ci_low: t.interval.low,
-                    ci_high: t.interval.high,
-                    confidence: level,
-                },
-                effects: vec![EffectSize {
-                    name: EffectKind::RobustD,
-                    value: t.effect,
-                    ci_low: None,
-                    ci_high: None,
-                }],
-                zeros_dropped: None,
-                zero_rule: None,
-                zeros_ranked: None,
-                p_detail: None,
-                continuity_correction: None,
-                log10_p: (t.p > 0.0).then(|| t.p.log10()),
                 trim: Some(t.trim),
-                permutations: None,
+                ..t_shaped(
+                    m,
+                    (t.statistic, t.df, t.p),
+                    kind,
+                    (t.estimate, t.interval),
+                    vec![EffectSize {
+                        name: EffectKind::RobustD,
+                        value: t.effect,
+                        ci_low: None,
+                        ci_high: None,
+                    }],
+                )
             }
         }
         Method::Checked => {

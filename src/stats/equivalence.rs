@@ -58,21 +58,35 @@ pub(super) fn check(low: f64, high: f64, alpha: f64) -> Result<(), StatsError> {
 }
 
 fn finish(r: TTest, low: f64, high: f64) -> Tost {
-    let t_lower = (r.estimate - low) / r.se;
-    let t_upper = (r.estimate - high) / r.se;
-    let p_lower = t_sf(t_lower, r.df);
-    let p_upper = t_cdf(t_upper, r.df);
+    from_parts(r.estimate, r.se, r.df, r.interval, low, high)
+}
+
+/// The two one-sided t tests of an estimate with standard error `se` and
+/// `df` degrees of freedom against `low` and `high`; `interval` is its
+/// 1 − 2α interval. Shared by the mean and the trimmed-mean TOST.
+pub(super) fn from_parts(
+    estimate: f64,
+    se: f64,
+    df: f64,
+    interval: Interval,
+    low: f64,
+    high: f64,
+) -> Tost {
+    let t_lower = (estimate - low) / se;
+    let t_upper = (estimate - high) / se;
+    let p_lower = t_sf(t_lower, df);
+    let p_upper = t_cdf(t_upper, df);
     Tost {
         low,
         high,
         t_lower,
         t_upper,
-        df: r.df,
+        df,
         p_lower,
         p_upper,
         p: p_lower.max(p_upper),
-        estimate: r.estimate,
-        interval: r.interval,
+        estimate,
+        interval,
     }
 }
 

@@ -68,23 +68,9 @@ pub fn tost_hodges_lehmann(
     alpha: f64,
     options: &RankOptions,
 ) -> Result<RankTost, StatsError> {
-    check(low, high, alpha)?;
-    let level = 1.0 - alpha;
-    let shifted = |by: f64| x.iter().map(|v| v - by).collect::<Vec<f64>>();
-    let lower = mann_whitney_with(&shifted(low), y, Alternative::Greater, level, options)?;
-    let upper = mann_whitney_with(&shifted(high), y, Alternative::Less, level, options)?;
-    let both = mann_whitney_with(x, y, Alternative::TwoSided, 1.0 - 2.0 * alpha, options)?;
-    let p = lower.p.max(upper.p);
-    Ok(RankTost {
-        low,
-        high,
-        p_lower: lower.p,
-        p_upper: upper.p,
-        p,
-        estimate: both.estimate,
-        interval: both.interval,
-        decision: Decision::at(p, alpha),
-        t: None,
+    shift_tost(low, high, alpha, |by, alt, level| {
+        let shifted: Vec<f64> = x.iter().map(|v| v - by).collect();
+        mann_whitney_with(&shifted, y, alt, level, options)
     })
 }
 
@@ -101,12 +87,26 @@ pub fn tost_signed_rank(
     alpha: f64,
     options: &RankOptions,
 ) -> Result<RankTost, StatsError> {
+    shift_tost(low, high, alpha, |by, alt, level| {
+        let shifted: Vec<f64> = d.iter().map(|v| v - by).collect();
+        wilcoxon_signed_rank_with(&shifted, alt, level, options)
+    })
+}
+
+/// The two one-sided rank tests of a shift: `test(by, alternative,
+/// level)` runs the rank test on the data shifted by `by`; the tests
+/// against `low` (greater) and `high` (less) are each at α, and the
+/// unshifted two-sided test at 1 − 2α gives the estimate and interval.
+fn shift_tost(
+    low: f64,
+    high: f64,
+    alpha: f64,
+    test: impl Fn(f64, Alternative, f64) -> Result<super::rank_tests::RankTest, StatsError>,
+) -> Result<RankTost, StatsError> {
     check(low, high, alpha)?;
-    let level = 1.0 - alpha;
-    let shifted = |by: f64| d.iter().map(|v| v - by).collect::<Vec<f64>>();
-    let lower = wilcoxon_signed_rank_with(&shifted(low), Alternative::Greater, level, options)?;
-    let upper = wilcoxon_signed_rank_with(&shifted(high), Alternative::Less, level, options)?;
-    let both = wilcoxon_signed_rank_with(d, Alternative::TwoSided, 1.0 - 2.0 * alpha, options)?;
+    let lower = test(low, Alternative::Greater, 1.0 - alpha)?;
+    let upper = test(high, Alternative::Less, 1.0 - alpha)?;
+    let both = test(0.0, Alternative::TwoSided, 1.0 - 2.0 * alpha)?;
     let p = lower.p.max(upper.p);
     Ok(RankTost {
         low,

@@ -227,22 +227,9 @@ pub fn trimmed_t_paired(
 /// (`BadParameter`, `NonFinite`).
 pub fn tost_trimmed(r: &TrimmedT, low: f64, high: f64, alpha: f64) -> Result<Tost, StatsError> {
     super::equivalence::check(low, high, alpha)?;
-    let t_lower = (r.estimate - low) / r.se;
-    let t_upper = (r.estimate - high) / r.se;
-    let p_lower = t_sf(t_lower, r.df);
-    let p_upper = super::dist::t_cdf(t_upper, r.df);
-    Ok(Tost {
-        low,
-        high,
-        t_lower,
-        t_upper,
-        df: r.df,
-        p_lower,
-        p_upper,
-        p: p_lower.max(p_upper),
-        estimate: r.estimate,
-        interval: r.interval,
-    })
+    Ok(super::equivalence::from_parts(
+        r.estimate, r.se, r.df, r.interval, low, high,
+    ))
 }
 
 #[cfg(test)]
