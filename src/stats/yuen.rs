@@ -295,4 +295,24 @@ mod tests {
             Err(StatsError::ZeroVariance)
         );
     }
+
+    #[test]
+    fn trimmed_tost_agrees_with_its_interval_on_both_sides_of_each_bound() {
+        // Schuirmann's duality: both one-sided tests reject at α exactly
+        // when the 1 − 2α interval lies inside the bounds. Bounds just
+        // inside and just outside each interval end test both sides.
+        let x: Vec<f64> = (0..17).map(|i| ((i * 7) % 17) as f64 * 0.3 + 1.0).collect();
+        let y: Vec<f64> = (0..15).map(|i| ((i * 4) % 15) as f64 * 0.4).collect();
+        let r = yuen(&x, &y, 0.2, Alternative::TwoSided, 0.9).unwrap();
+        let (lo, hi) = (r.interval.low.unwrap(), r.interval.high.unwrap());
+        for (low, high, inside) in [
+            (lo - 1e-6, hi + 1e-6, true),
+            (lo + 1e-6, hi + 1e-6, false),
+            (lo - 1e-6, hi - 1e-6, false),
+        ] {
+            let t = tost_trimmed(&r, low, high, 0.05).unwrap();
+            assert_eq!(t.p < 0.05, inside, "({low}, {high}): p = {}", t.p);
+        }
+        assert!(tost_trimmed(&r, 1.0, 1.0, 0.05).is_err());
+    }
 }
