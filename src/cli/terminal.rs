@@ -158,7 +158,7 @@ pub(crate) fn run_summary(o: &RunOutcome, colour: bool) -> String {
         let (symbol, effect_value) = match eff.name {
             EffectKind::CohenD => ("d", apa::two(eff.value)),
             EffectKind::HedgesG => ("g", apa::two(eff.value)),
-            EffectKind::DZ => ("dz", apa::two(eff.value)),
+            EffectKind::DZ => ("d_z", apa::two(eff.value)),
             EffectKind::RankBiserial => ("r", apa::bounded(eff.value, 2)),
             EffectKind::ProbabilityOfSuperiority => ("PS", apa::bounded(eff.value, 2)),
         };

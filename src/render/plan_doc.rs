@@ -216,11 +216,11 @@ fn choice_words(h: &Hypothesis, check_alpha: f64) -> String {
     }
     match h.design {
         Design::Independent => format!(
-            "{id}: Shapiro–Wilk on each group and Brown–Forsythe on the spread, each judged at α = {a}. If normality is rejected in either group → Mann–Whitney U test; if normality holds and the spread differs → Welch's t-test; if both hold → Student's t-test; if a check cannot run (too few values) → Welch's t-test."
+            "{id}: Shapiro–Wilk on each group and Brown–Forsythe on the spread, each judged at α = {a}. If normality is rejected in either group → Mann–Whitney *U* test; if normality holds and the spread differs → Welch's *t* test; if both hold → Student's *t* test; if a check cannot run (too few values) → Welch's *t* test."
         ),
         _ => format!(
             "{id}: Shapiro–Wilk on the differences, judged at α = {a}. If normality is rejected → Wilcoxon signed-rank test; otherwise, or if the check cannot run → {}.",
-            if h.design == Design::Paired { "paired t-test" } else { "one-sample t-test" }
+            if h.design == Design::Paired { "paired *t* test" } else { "one-sample *t* test" }
         ),
     }
 }

@@ -149,6 +149,9 @@ pub(crate) fn markdown_to_latex(md: &str) -> String {
             Event::End(TagEnd::Emphasis) | Event::End(TagEnd::Strong) => s.push('}'),
             Event::Text(t) | Event::Code(t) => s.push_str(&latex_escape(&t)),
             Event::SoftBreak | Event::HardBreak => s.push(' '),
+            // The one piece of HTML the view writes: a subscript.
+            Event::InlineHtml(t) if &*t == "<sub>" => s.push_str("\\textsubscript{"),
+            Event::InlineHtml(t) if &*t == "</sub>" => s.push('}'),
             Event::Html(t) | Event::InlineHtml(t) => s.push_str(&latex_escape(&t)),
             _ => {}
         }
@@ -189,7 +192,14 @@ pub(crate) fn from_results(r: &Results) -> Result<Values> {
         add("Stat", bare_statistic(h))?;
         add("P", sentence::p_of(h, correction))?;
         add("Effect", sentence::effect(&h.effect, conf))?;
-        add("Diff", sentence::estimate(&h.estimate, h.units.as_deref()))?;
+        add(
+            "Diff",
+            sentence::estimate(
+                &h.estimate,
+                h.units.as_deref(),
+                super::view::apa::measured(h.recorded_decimals),
+            ),
+        )?;
         add("Sentence", sentence::one_sentence(h, correction))?;
         if let Some(eq) = &h.equivalence {
             add(
@@ -254,6 +264,9 @@ pub(crate) fn plain(markdown: &str) -> String {
     let mut s = String::new();
     for ev in Parser::new(markdown) {
         match ev {
+            // A subscript in plain text is written after an underscore: d_z.
+            Event::InlineHtml(t) if &*t == "<sub>" => s.push('_'),
+            Event::InlineHtml(t) if &*t == "</sub>" => {}
             Event::Text(t) | Event::Code(t) | Event::Html(t) | Event::InlineHtml(t) => {
                 s.push_str(&t)
             }
@@ -287,6 +300,17 @@ mod tests {
             .add(name("a", "H-1", "t"), "H-1 t".into(), "y".into())
             .unwrap_err();
         assert_eq!(e.what, "two values would be named \\AHOneT: H1 t and H-1 t");
+    }
+
+    #[test]
+    fn subscripts_become_latex_and_plain_text() {
+        // APA Publication Manual, 7th ed., §6.44: d with the subscript z, the
+        // subscript upright (an identifier, not a statistic).
+        assert_eq!(
+            markdown_to_latex("*d*<sub>z</sub> = 0.41"),
+            "\\textit{d}\\textsubscript{z} = 0.41"
+        );
+        assert_eq!(plain("*d*<sub>z</sub> = 0.41"), "d_z = 0.41");
     }
 
     #[test]
