@@ -469,7 +469,7 @@ fn pairs(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
     // Room on the right for the legend of the two line colours.
     let x = Axis {
         lo: -0.3,
-        hi: 2.0,
+        hi: 2.4,
         ticks: vec![0.0, 1.0],
         decimals: 0,
     };

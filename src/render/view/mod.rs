@@ -967,7 +967,7 @@ fn figures(
         let (title, values) = match h.design {
             Design::Paired => (
                 "Normal Q–Q, the differences",
-                format!("difference in {axis}"),
+                format!("difference in {}", sentence::mid_sentence(&axis)),
             ),
             Design::Independent | Design::OneSample => ("Normal Q–Q, each group", axis.clone()),
         };
@@ -988,7 +988,7 @@ fn figures(
             FigureRole::Differences,
             "Each unit's difference",
             note,
-            format!("difference in {axis}"),
+            format!("difference in {}", sentence::mid_sentence(&axis)),
             "number of units",
             Vec::new(),
         ));
