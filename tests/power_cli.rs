@@ -50,9 +50,23 @@ fn unequal_allocation_follows_the_ratio() {
 
 #[test]
 fn one_group_designs_give_a_number() {
-    let v = json(&["--design", "paired", "--smallest-effect", "0.5", "--chance-to-detect", "0.8"]);
+    let v = json(&[
+        "--design",
+        "paired",
+        "--smallest-effect",
+        "0.5",
+        "--chance-to-detect",
+        "0.8",
+    ]);
     assert!(v["n"].is_u64(), "{v}");
-    let p = json(&["--design", "one-sample", "--smallest-effect", "0.5", "--units", "20"]);
+    let p = json(&[
+        "--design",
+        "one-sample",
+        "--smallest-effect",
+        "0.5",
+        "--units",
+        "20",
+    ]);
     assert_eq!(p["n"], 20);
     assert_eq!(p["solved"], "power");
 }
@@ -92,7 +106,9 @@ fn exactly_two_of_three_are_required() {
         .code(1);
     let err = String::from_utf8_lossy(&out.get_output().stderr).into_owned();
     assert!(
-        err.starts_with("error: give exactly two of --smallest-effect, --chance-to-detect and --units"),
+        err.starts_with(
+            "error: give exactly two of --smallest-effect, --chance-to-detect and --units"
+        ),
         "{err}"
     );
     assert!(err.contains("\nhelp: "), "{err}");

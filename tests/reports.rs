@@ -185,7 +185,10 @@ fn every_inline_figure_has_a_rendered_size() {
             "{name}: expected at least three measured figures:\n{text}"
         );
         assert!(!text.contains("FAIL"), "{text}");
-        let fits = text.lines().filter(|l| l.contains("fits the 16 cm text block")).count();
+        let fits = text
+            .lines()
+            .filter(|l| l.contains("fits the 16 cm text block"))
+            .count();
         let sized = text.lines().filter(|l| l.contains("smallest text")).count();
         assert!(
             fits >= 3 && fits == sized,

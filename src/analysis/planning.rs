@@ -139,10 +139,10 @@ pub(crate) fn answer(q: &Question) -> Result<Answer> {
             .help("--smallest-effect and --chance-to-detect give the sample size; --smallest-effect and --units give the power; --units and --chance-to-detect give the smallest detectable effect"));
     }
     if q.design != Design::Independent && (q.sd_ratio.is_some() || q.ratio != 1.0) {
-        return Err(
-            Failure::input("--second-per-first and --sd-ratio apply to independent designs only")
-                .help("leave them out for paired and one-sample designs"),
-        );
+        return Err(Failure::input(
+            "--second-per-first and --sd-ratio apply to independent designs only",
+        )
+        .help("leave them out for paired and one-sample designs"));
     }
     let pd = power_design(q.design, q.ratio);
     let welch = q.sd_ratio;

@@ -177,6 +177,11 @@ fn describe(g: Option<&GroupSummary>, rank: bool, decimals: usize) -> String {
     }
 }
 
+/// `s` with its first letter in capitals (a sentence's opening).
+pub(crate) fn capitalise(s: &str) -> String {
+    capitalised(s)
+}
+
 fn capitalised(s: &str) -> String {
     let mut c = s.chars();
     match c.next() {
