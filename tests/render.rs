@@ -663,7 +663,10 @@ fn snapshot_plan() {
 /// italic in title case; statistical symbols italic).
 #[test]
 fn apa_style_holds_in_the_report() {
-    let md = render_report(&scenario(), None).unwrap().report_md;
+    let mut r = scenario();
+    // H2 reports d_z here, to show its subscript.
+    r.hypotheses[1].effect.name = EffectKind::DZ;
+    let md = render_report(&r, None).unwrap().report_md;
     // §7.11–7.12: "Table N" in bold, the title in italics on the next line.
     assert!(md.contains("**Table 1**\n\n*At a Glance*"), "{md}");
     assert!(
@@ -748,4 +751,55 @@ fn figures_print_at_the_designed_width() {
             }
         }
     }
+}
+
+#[test]
+fn the_plans_names_replace_the_datas_spelling() {
+    let mut r = scenario();
+    r.plan.hypotheses[0]
+        .names
+        .insert("drip".into(), "drip-watered plants".into());
+    let out = render_report(&r, None).unwrap();
+    let sentence = out
+        .report_md
+        .lines()
+        .find(|l| l.starts_with("> Fruit per plant"))
+        .expect("H1's sentence");
+    assert!(sentence.contains("for drip-watered plants ("), "{sentence}");
+    assert!(!sentence.contains("for drip ("), "{sentence}");
+    assert!(out.report_md.contains("| drip-watered plants | "), "descriptives row");
+}
+
+#[test]
+fn an_estimate_against_the_preregistered_direction_is_named() {
+    let mut r = scenario();
+    let h = &mut r.hypotheses[0];
+    h.estimate.value = -0.31;
+    h.estimate.ci_low = Some(-0.7);
+    h.decision = Decision::Retain;
+    let md = render_report(&r, None).unwrap().report_md;
+    let sentence = md
+        .lines()
+        .find(|l| l.starts_with("> Fruit per plant"))
+        .expect("H1's sentence");
+    assert!(
+        sentence.contains("was lower for drip (")
+            && sentence.contains("the opposite of the preregistered direction (higher)"),
+        "{sentence}"
+    );
+    assert!(!sentence.contains("not shown to be higher"), "{sentence}");
+}
+
+#[test]
+fn outcome_names_are_in_sentence_case_inside_a_sentence() {
+    let mut r = scenario();
+    let h = &mut r.hypotheses[0];
+    h.outcome_label = "Fruit per plant".into();
+    h.alternative = Alternative::TwoSided;
+    h.decision = Decision::Retain;
+    let md = render_report(&r, None).unwrap().report_md;
+    assert!(
+        md.contains("> The data did not show a difference in fruit per plant between"),
+        "{md}"
+    );
 }

@@ -146,12 +146,12 @@ mod tests {
         assert_eq!(a.decimals, 0);
         assert!(labels(&a).iter().all(|l| !l.contains('.')), "{a:?}");
         assert!(a.lo <= 1672.0 && a.hi >= 1978.0);
-        assert_eq!(labels(&a).first().map(String::as_str), Some("1650"));
+        assert_eq!(labels(&a).first().map(String::as_str), Some("1600"));
     }
 
     #[test]
     fn labels_share_the_decimals_of_the_step() {
-        let a = Axis::nice(-1.83, 2.4, 6);
+        let a = Axis::nice(-0.183, 0.24, 6);
         let l = labels(&a);
         assert!(
             l.iter()

@@ -200,13 +200,19 @@ pub(crate) fn from_results(r: &Results) -> Result<Values> {
                 super::view::apa::measured(h.recorded_decimals),
             ),
         )?;
-        add("Sentence", sentence::one_sentence(h, correction))?;
+        // Macro names keep the data's spelling; the words use the plan's
+        // display names, as the report does.
+        add(
+            "Sentence",
+            sentence::one_sentence(&super::view::displayed(r, h), correction),
+        )?;
         if let Some(eq) = &h.equivalence {
             add(
                 "Equivalence",
                 format!("{} = {}", apa::sym("p"), apa::p_number(eq.p)),
             )?;
         }
+        let digits = apa::measured(h.recorded_decimals);
         for g in &h.groups {
             add(
                 &format!("N {}", g.label),
@@ -214,12 +220,12 @@ pub(crate) fn from_results(r: &Results) -> Result<Values> {
             )?;
             add(
                 &format!("Mean {}", g.label),
-                format!("{} = {}", apa::sym("M"), apa::two(g.describe.mean)),
+                format!("{} = {}", apa::sym("M"), apa::fixed(g.describe.mean, digits)),
             )?;
             if let Some(sd) = g.describe.sd {
                 add(
                     &format!("SD {}", g.label),
-                    format!("{} = {}", apa::sym("SD"), apa::two(sd)),
+                    format!("{} = {}", apa::sym("SD"), apa::fixed(sd, digits)),
                 )?;
             }
         }

@@ -267,7 +267,7 @@ pub(crate) fn report(r: &Results) -> ReportView {
 /// A hypothesis as the reports show it: every group, condition or column
 /// under the name the plan's `names` gives it (results.json keeps the
 /// data's own spelling).
-fn displayed(r: &Results, h: &HypothesisResult) -> HypothesisResult {
+pub(crate) fn displayed(r: &Results, h: &HypothesisResult) -> HypothesisResult {
     let mut h = h.clone();
     let Some(names) = r
         .plan
