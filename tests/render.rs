@@ -767,7 +767,10 @@ fn the_plans_names_replace_the_datas_spelling() {
         .expect("H1's sentence");
     assert!(sentence.contains("for drip-watered plants ("), "{sentence}");
     assert!(!sentence.contains("for drip ("), "{sentence}");
-    assert!(out.report_md.contains("| drip-watered plants | "), "descriptives row");
+    assert!(
+        out.report_md.contains("| drip-watered plants | "),
+        "descriptives row"
+    );
 }
 
 #[test]

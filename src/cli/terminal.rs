@@ -162,12 +162,13 @@ pub(crate) fn run_summary(o: &RunOutcome, colour: bool) -> String {
             EffectKind::RankBiserial => ("r", apa::bounded(eff.value, 2)),
             EffectKind::ProbabilityOfSuperiority => ("PS", apa::bounded(eff.value, 2)),
         };
+        let f = |x| apa::fixed(x, apa::measured(h.recorded_decimals));
         s.push_str(&format!(
             "{:<width$}  {}  diff {} {}  {} {}  p {}  {}\n",
             clean(&h.id),
             h.method.as_str(),
-            apa::two(est.value),
-            apa::bounds(est.ci_low, est.ci_high, apa::two),
+            f(est.value),
+            apa::ci(est.confidence, est.ci_low, est.ci_high, f),
             symbol,
             effect_value,
             apa::p_number(h.p_adjusted),

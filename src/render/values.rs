@@ -220,7 +220,11 @@ pub(crate) fn from_results(r: &Results) -> Result<Values> {
             )?;
             add(
                 &format!("Mean {}", g.label),
-                format!("{} = {}", apa::sym("M"), apa::fixed(g.describe.mean, digits)),
+                format!(
+                    "{} = {}",
+                    apa::sym("M"),
+                    apa::fixed(g.describe.mean, digits)
+                ),
             )?;
             if let Some(sd) = g.describe.sd {
                 add(

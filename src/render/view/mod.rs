@@ -61,6 +61,16 @@ impl TableView {
     }
 }
 
+/// A table of plan or lock text, escaped; none when it has no rows.
+fn text_table<'a>(
+    title: &str,
+    header: [&str; 3],
+    rows: impl Iterator<Item = [&'a String; 3]>,
+) -> Option<TableView> {
+    let rows: Vec<Vec<Value>> = rows.map(|r| r.map(|t| md(escape(t))).to_vec()).collect();
+    (!rows.is_empty()).then(|| TableView::new(title.into(), cells(header), rows))
+}
+
 fn cells<'a>(words: impl IntoIterator<Item = &'a str>) -> Vec<Value> {
     words.into_iter().map(md).collect()
 }
@@ -208,34 +218,16 @@ pub(crate) fn report(r: &Results) -> ReportView {
         t.number = tables.len() + 1;
         tables.push(t.clone());
     };
-    let mut changes = (!r.changes.is_empty()).then(|| {
-        TableView::new(
-            "Changes Since the Lock".into(),
-            cells(["Field", "Locked value", "Current value"]),
-            r.changes
-                .iter()
-                .map(|c| {
-                    [&c.field, &c.locked, &c.current]
-                        .map(|t| md(escape(t)))
-                        .to_vec()
-                })
-                .collect(),
-        )
-    });
-    let mut deviations = (!r.deviations.is_empty()).then(|| {
-        TableView::new(
-            "Deviations Declared in the Analysis File".into(),
-            cells(["Date", "What changed", "Why"]),
-            r.deviations
-                .iter()
-                .map(|d| {
-                    [&d.date, &d.change, &d.reason]
-                        .map(|t| md(escape(t)))
-                        .to_vec()
-                })
-                .collect(),
-        )
-    });
+    let mut changes = text_table(
+        "Changes Since the Lock",
+        ["Field", "Locked value", "Current value"],
+        r.changes.iter().map(|c| [&c.field, &c.locked, &c.current]),
+    );
+    let mut deviations = text_table(
+        "Deviations Declared in the Analysis File",
+        ["Date", "What changed", "Why"],
+        r.deviations.iter().map(|d| [&d.date, &d.change, &d.reason]),
+    );
     for t in changes.iter_mut().chain(deviations.iter_mut()) {
         number(t);
     }
