@@ -721,6 +721,17 @@ fn decimals_follow_the_recorded_resolution() {
 #[test]
 fn figures_print_at_the_designed_width() {
     let out = render_report(&scenario(), None).unwrap();
+    let methods = &out
+        .figures
+        .iter()
+        .find(|(n, _)| n.ends_with("h1-methods.svg"))
+        .unwrap()
+        .1;
+    // Test names inside a figure keep their italic symbol (§6.44).
+    assert!(
+        methods.contains("<tspan font-style=\"italic\">t</tspan> test"),
+        "{methods}"
+    );
     for (name, svg) in &out.figures {
         assert!(svg.contains("width=\"16cm\""), "{name}");
         let view_width: f64 = svg

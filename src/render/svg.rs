@@ -98,7 +98,28 @@ pub(crate) fn draw(r: &Results, f: &FigureView) -> String {
     if drawn.is_err() {
         buf = placeholder(size);
     }
-    label_svg(&printed_size(&buf, size), &f.id, &f.title, &f.note)
+    label_svg(
+        &italic_symbols(&printed_size(&buf, size)),
+        &f.id,
+        &f.title,
+        &f.note,
+    )
+}
+
+/// Sets the statistic in a test's name in italics inside the drawing, as
+/// the text around it does ("Welch's *t* test"; APA Publication Manual,
+/// 7th ed., §6.44). plotters writes each label as one `<text>`; the
+/// symbol becomes an italic `<tspan>` within it. Run before the `<title>`
+/// and `<desc>` are added, which stay plain text.
+fn italic_symbols(svg: &str) -> String {
+    let mut out = svg.to_string();
+    for symbol in ["t", "U"] {
+        out = out.replace(
+            &format!(" {symbol} test"),
+            &format!(" <tspan font-style=\"italic\">{symbol}</tspan> test"),
+        );
+    }
+    out
 }
 
 /// Gives the SVG its printed size (see the module comment) in place of

@@ -207,8 +207,11 @@ pub(crate) fn rank_statistic(x: f64) -> String {
 mod tests {
     use super::*;
 
-    // Source for every test here: APA Publication Manual, 7th ed. (section
-    // numbers from memory).
+    // Source for every test here: APA Publication Manual, 7th ed. (2020),
+    // the section named beside each; the rules were checked against the APA
+    // Style blog ("A post about nothing", 2010; "Formatting statistics:
+    // using brackets", 2010) and university summaries of the 7th edition,
+    // which give the section numbers.
 
     #[test]
     fn most_figures_take_two_decimals() {
