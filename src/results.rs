@@ -403,6 +403,12 @@ pub struct HypothesisResult {
     pub outcome_label: String,
     /// Measurement unit, if the plan gives one.
     pub units: Option<String>,
+    /// Decimals the outcome was recorded with: the plan's `decimals` when
+    /// it gives one, otherwise the fewest decimals that hold every analysed
+    /// value exactly (null when no count up to six does: computed or
+    /// transformed values). The reports show descriptives and differences
+    /// to one decimal more; this file keeps full precision.
+    pub recorded_decimals: Option<u32>,
     /// Labels of first and second (for one-sample: outcome and reference).
     pub labels: [String; 2],
     /// Reference value (one-sample only).

@@ -146,7 +146,7 @@ fn a_closed_stderr_ends_with_the_exit_code_not_a_panic() {
     assert_eq!(code_with_stderr_closed("check missing.toml"), 1);
     assert_eq!(
         code_with_stderr_closed(
-            "power --design independent --effect 0.4 --power 0.9 --alternative one-sided"
+            "power --design independent --smallest-effect 0.4 --chance-to-detect 0.9 --alternative one-sided"
         ),
         1
     );

@@ -22,9 +22,9 @@ fn independent_n_is_an_array_of_group_sizes() {
     let v = json(&[
         "--design",
         "independent",
-        "--effect",
+        "--smallest-effect",
         "0.5",
-        "--power",
+        "--chance-to-detect",
         "0.8",
     ]);
     assert_eq!(v["n"], serde_json::json!([64, 64]));
@@ -37,11 +37,11 @@ fn unequal_allocation_follows_the_ratio() {
     let v = json(&[
         "--design",
         "independent",
-        "--effect",
+        "--smallest-effect",
         "0.5",
-        "--power",
+        "--chance-to-detect",
         "0.8",
-        "--ratio",
+        "--second-per-first",
         "2",
     ]);
     let n = v["n"].as_array().unwrap();
@@ -50,9 +50,23 @@ fn unequal_allocation_follows_the_ratio() {
 
 #[test]
 fn one_group_designs_give_a_number() {
-    let v = json(&["--design", "paired", "--effect", "0.5", "--power", "0.8"]);
+    let v = json(&[
+        "--design",
+        "paired",
+        "--smallest-effect",
+        "0.5",
+        "--chance-to-detect",
+        "0.8",
+    ]);
     assert!(v["n"].is_u64(), "{v}");
-    let p = json(&["--design", "one-sample", "--effect", "0.5", "--n", "20"]);
+    let p = json(&[
+        "--design",
+        "one-sample",
+        "--smallest-effect",
+        "0.5",
+        "--units",
+        "20",
+    ]);
     assert_eq!(p["n"], 20);
     assert_eq!(p["solved"], "power");
 }
@@ -65,9 +79,9 @@ fn the_terminal_answer_is_a_sentence() {
             "power",
             "--design",
             "independent",
-            "--effect",
+            "--smallest-effect",
             "0.4",
-            "--power",
+            "--chance-to-detect",
             "0.9",
             "--alternative",
             "greater",
@@ -87,12 +101,14 @@ fn the_terminal_answer_is_a_sentence() {
 fn exactly_two_of_three_are_required() {
     let c = Case::new();
     let out = c
-        .attest(&["power", "--design", "paired", "--effect", "0.5"])
+        .attest(&["power", "--design", "paired", "--smallest-effect", "0.5"])
         .failure()
         .code(1);
     let err = String::from_utf8_lossy(&out.get_output().stderr).into_owned();
     assert!(
-        err.starts_with("error: give exactly two of --effect, --power and --n"),
+        err.starts_with(
+            "error: give exactly two of --smallest-effect, --chance-to-detect and --units"
+        ),
         "{err}"
     );
     assert!(err.contains("\nhelp: "), "{err}");

@@ -108,6 +108,8 @@ fn plan() -> Plan {
                 equivalence: None,
                 label: Some("fruit per plant".into()),
                 units: Some("kg".into()),
+                decimals: None,
+                names: Default::default(),
                 robustness: true,
                 conventions: Default::default(),
                 planning: None,
@@ -126,6 +128,8 @@ fn plan() -> Plan {
                 equivalence: None,
                 label: Some("weekly hours".into()),
                 units: Some("h".into()),
+                decimals: None,
+                names: Default::default(),
                 robustness: false,
                 conventions: Default::default(),
                 planning: None,
@@ -184,6 +188,7 @@ fn h1() -> HypothesisResult {
         alternative: Alternative::Greater,
         outcome_label: "fruit per plant".into(),
         units: Some("kg".into()),
+        recorded_decimals: Some(1),
         labels: ["drip".into(), "hand".into()],
         reference: None,
         groups: vec![
@@ -341,6 +346,7 @@ fn h2() -> HypothesisResult {
         alternative: Alternative::TwoSided,
         outcome_label: "weekly hours".into(),
         units: Some("h".into()),
+        recorded_decimals: None,
         labels: ["hours_after".into(), "hours_before".into()],
         reference: None,
         groups: vec![
@@ -553,7 +559,7 @@ fn a_user_template_overrides_and_the_rest_fall_back() {
     let dir = tempfile::tempdir().unwrap();
     std::fs::write(
         dir.path().join("report.md.j2"),
-        "{% import \"macros.md.j2\" as m %}# Garden notes: {{ title }}\n{% for g in glance %}{{ g.id }} {{ g.verdict }}\n{% endfor %}",
+        "{% import \"macros.md.j2\" as m %}# Garden notes: {{ title }}\n{% for h in hypotheses %}{{ h.id }} {{ glance.rows[loop.index0][5] }}\n{% endfor %}",
     )
     .unwrap();
     let out = render_report(&scenario(), Some(dir.path())).unwrap();
@@ -598,6 +604,7 @@ fn every_figure_is_labelled() {
             "figures/h1-groups.svg",
             "figures/h1-qq.svg",
             "figures/h1-difference.svg",
+            "figures/h1-methods.svg",
             "figures/h2-pairs.svg",
             "figures/h2-qq.svg",
             "figures/h2-differences.svg",
@@ -652,4 +659,167 @@ fn snapshot_plan() {
     let out = render_plan(&lock_of(&scenario()), &[], None).unwrap();
     insta::assert_snapshot!("plan_md", out.plan_md);
     insta::assert_snapshot!("plan_html", out.plan_html);
+}
+
+/// The APA 7 rules the reports follow, each checked where it shows. Sources:
+/// APA Publication Manual, 7th ed. (2020); rules checked through the APA
+/// Style blog ("A post about nothing", 2010, leading zeros; "Formatting
+/// statistics: using brackets", 2010, intervals with their level) and
+/// university summaries of the 7th edition (table number bold, title
+/// italic in title case; statistical symbols italic).
+#[test]
+fn apa_style_holds_in_the_report() {
+    let mut r = scenario();
+    // H2 reports d_z here, to show its subscript.
+    r.hypotheses[1].effect.name = EffectKind::DZ;
+    let md = render_report(&r, None).unwrap().report_md;
+    // §7.11–7.12: "Table N" in bold, the title in italics on the next line.
+    assert!(md.contains("**Table 1**\n\n*At a Glance*"), "{md}");
+    assert!(
+        md.contains("**Table 2**\n\n*What the Data Look Like in H1*"),
+        "{md}"
+    );
+    // §6.44: symbols italic, table headers included.
+    assert!(md.contains("|  | *n* | *M* | *SD* | *Mdn* |"), "{md}");
+    assert!(md.contains("| *p* (Holm-adjusted) | Verdict |"), "{md}");
+    // §6.44: the statistic in a test's name is a symbol, italic ("t test").
+    assert!(md.contains("Welch's *t* test"), "{md}");
+    assert!(!md.contains("t-test") && !md.contains("U test |"), "{md}");
+    // §6.44: d with an upright subscript z.
+    assert!(md.contains("*d*<sub>z</sub>"), "{md}");
+    assert!(!md.contains("*d*z") && !md.contains("d_z"), "{md}");
+    // §6.43: every interval states its level, in tables too.
+    for line in md.lines() {
+        for (i, _) in line.match_indices(" [") {
+            let before = &line[..i];
+            assert!(
+                before.ends_with("CI") || before.ends_with("CIs") || !line[i..].contains(", "),
+                "an interval without its level: {line}"
+            );
+        }
+    }
+    // §6.36: no leading zero where a value cannot exceed 1 (p, W); one where it can.
+    assert!(!md.contains("= 0.0") || md.contains("*d* = 0."), "{md}");
+    assert!(!md.contains("*p* = 0."), "{md}");
+}
+
+#[test]
+fn decimals_follow_the_recorded_resolution() {
+    // H1's fixture was recorded to one decimal: descriptives to two, the
+    // range as recorded (APA Publication Manual, 7th ed., §6.36).
+    let md = render_report(&scenario(), None).unwrap().report_md;
+    let row = md
+        .lines()
+        .find(|l| l.starts_with("| drip |"))
+        .expect("drip row");
+    let range = row.trim_end_matches(" |").rsplit(" | ").next().unwrap();
+    assert!(
+        range
+            .split(" to ")
+            .all(|v| v.split('.').nth(1).map(str::len) == Some(1)),
+        "range as recorded: {row}"
+    );
+}
+
+/// Figures are drawn for the 16 cm text block of a single-column A4 page:
+/// text at least 8 pt there, tick labels with the true minus sign and no
+/// negative zero (APA Publication Manual, 7th ed., §6.44 for the sign).
+#[test]
+fn figures_print_at_the_designed_width() {
+    let out = render_report(&scenario(), None).unwrap();
+    let methods = &out
+        .figures
+        .iter()
+        .find(|(n, _)| n.ends_with("h1-methods.svg"))
+        .unwrap()
+        .1;
+    // Test names inside a figure keep their italic symbol (§6.44).
+    assert!(
+        methods.contains("<tspan font-style=\"italic\">t</tspan> test"),
+        "{methods}"
+    );
+    for (name, svg) in &out.figures {
+        assert!(svg.contains("width=\"16cm\""), "{name}");
+        let view_width: f64 = svg
+            .split("viewBox=\"0 0 ")
+            .nth(1)
+            .and_then(|s| s.split(' ').next())
+            .and_then(|w| w.parse().ok())
+            .expect("a view box");
+        let pt_per_unit = 16.0 / 2.54 * 72.0 / view_width;
+        for part in svg.split("font-size=\"").skip(1) {
+            let size: f64 = part.split('"').next().unwrap().parse().unwrap();
+            assert!(size * pt_per_unit >= 8.0, "{name}: text of {size} units");
+        }
+        for text in svg.split("<text").skip(1) {
+            let words = text
+                .split('>')
+                .nth(1)
+                .unwrap_or("")
+                .split('<')
+                .next()
+                .unwrap_or("");
+            if words.trim().parse::<f64>().is_ok() || words.starts_with('\u{2212}') {
+                assert!(!words.contains('-'), "{name}: hyphen-minus in {words}");
+                let digits = words.trim_start_matches('\u{2212}');
+                let negative_zero =
+                    words.starts_with('\u{2212}') && digits.chars().all(|c| c == '0' || c == '.');
+                assert!(!negative_zero, "{name}: negative zero {words}");
+            }
+        }
+    }
+}
+
+#[test]
+fn the_plans_names_replace_the_datas_spelling() {
+    let mut r = scenario();
+    r.plan.hypotheses[0]
+        .names
+        .insert("drip".into(), "drip-watered plants".into());
+    let out = render_report(&r, None).unwrap();
+    let sentence = out
+        .report_md
+        .lines()
+        .find(|l| l.starts_with("> Fruit per plant"))
+        .expect("H1's sentence");
+    assert!(sentence.contains("for drip-watered plants ("), "{sentence}");
+    assert!(!sentence.contains("for drip ("), "{sentence}");
+    assert!(
+        out.report_md.contains("| drip-watered plants | "),
+        "descriptives row"
+    );
+}
+
+#[test]
+fn an_estimate_against_the_preregistered_direction_is_named() {
+    let mut r = scenario();
+    let h = &mut r.hypotheses[0];
+    h.estimate.value = -0.31;
+    h.estimate.ci_low = Some(-0.7);
+    h.decision = Decision::Retain;
+    let md = render_report(&r, None).unwrap().report_md;
+    let sentence = md
+        .lines()
+        .find(|l| l.starts_with("> Fruit per plant"))
+        .expect("H1's sentence");
+    assert!(
+        sentence.contains("was lower for drip (")
+            && sentence.contains("the opposite of the preregistered direction (higher)"),
+        "{sentence}"
+    );
+    assert!(!sentence.contains("not shown to be higher"), "{sentence}");
+}
+
+#[test]
+fn outcome_names_are_in_sentence_case_inside_a_sentence() {
+    let mut r = scenario();
+    let h = &mut r.hypotheses[0];
+    h.outcome_label = "Fruit per plant".into();
+    h.alternative = Alternative::TwoSided;
+    h.decision = Decision::Retain;
+    let md = render_report(&r, None).unwrap().report_md;
+    assert!(
+        md.contains("> The data did not show a difference in fruit per plant between"),
+        "{md}"
+    );
 }

@@ -146,7 +146,11 @@ method = "welch-t"
 }
 
 /// Renders a demo report in headless Chromium (Debian's package) and checks
-/// that every inline SVG figure has a non-zero rendered size. It needs the
+/// that every inline SVG figure has a non-zero rendered size and, laid out
+/// in the 16 cm text block of a single-column A4 page (the width the
+/// figures are designed for), is no wider than that block and has no text
+/// below 8 pt (the smallest size commonly required of printed figures;
+/// common practice). It needs the
 /// browser, so a plain `cargo test` reports it as ignored (never as a
 /// silent pass); `.ci/run` installs Chromium and runs it with `--ignored`,
 /// where a missing browser fails it.
@@ -181,6 +185,15 @@ fn every_inline_figure_has_a_rendered_size() {
             "{name}: expected at least three measured figures:\n{text}"
         );
         assert!(!text.contains("FAIL"), "{text}");
+        let fits = text
+            .lines()
+            .filter(|l| l.contains("fits the 16 cm text block"))
+            .count();
+        let sized = text.lines().filter(|l| l.contains("smallest text")).count();
+        assert!(
+            fits >= 3 && fits == sized,
+            "{name}: every figure's print layout must be measured:\n{text}"
+        );
     }
 }
 

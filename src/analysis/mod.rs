@@ -16,6 +16,7 @@ use crate::stats::{self, describe, Alternative, StatsError};
 use rayon::prelude::*;
 
 pub(crate) mod planning;
+mod resolution;
 mod rule;
 
 use rule::{branch, choose};
@@ -25,8 +26,8 @@ use rule::{branch, choose};
 pub(crate) const PLOT_POINTS: usize = 2000;
 /// Before/after figures draw at most this many units.
 pub(crate) const PLOT_PAIRS: usize = 400;
-/// Histogram bins over all values.
-pub(crate) const PLOT_BINS: usize = 40;
+/// The most histogram bins a figure draws.
+pub(crate) const PLOT_BINS: usize = 60;
 
 /// Analyses one hypothesis on its selected values. `p_adjusted` and
 /// `decision` are provisional here; the caller applies the plan's
@@ -166,6 +167,9 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
         alternative: h.alternative,
         outcome_label: h.label.clone().unwrap_or_else(|| h.outcome_name()),
         units: h.units.clone(),
+        recorded_decimals: h
+            .decimals
+            .or_else(|| resolution::recorded_decimals(first.iter().chain(&second))),
         labels,
         reference: match h.comparison {
             Comparison::Reference { reference } => Some(reference),
@@ -705,7 +709,7 @@ pub(crate) fn plot_set(label: &str, x: &[f64]) -> PlotData {
             true,
         )
     };
-    let (bin_edges, bin_counts) = histogram(&sorted, PLOT_BINS);
+    let (bin_edges, bin_counts) = histogram(&sorted, bin_count(&sorted));
     let qq = qq_data(&points);
     PlotData {
         label: label.into(),
@@ -738,6 +742,30 @@ fn qq_data(sorted: &[f64]) -> QqData {
         }
     });
     QqData { theoretical, line }
+}
+
+/// The number of histogram bins by the rule of Freedman & Diaconis (1981),
+/// "On the histogram as a density estimator: L2 theory", *Zeitschrift für
+/// Wahrscheinlichkeitstheorie und verwandte Gebiete*, 57, 453–476: bin
+/// width 2·IQR·n^(−1/3). Where the IQR is zero (most values tied) the rule
+/// of Sturges (1926), "The choice of a class interval", *Journal of the
+/// American Statistical Association*, 21, 65–66, gives ⌈log₂ n⌉ + 1. At
+/// least one bin, at most [`PLOT_BINS`].
+pub(crate) fn bin_count(sorted: &[f64]) -> usize {
+    let n = sorted.len();
+    let (Some(&lo), Some(&hi)) = (sorted.first(), sorted.last()) else {
+        return 1;
+    };
+    if n < 2 || hi <= lo {
+        return 1;
+    }
+    let iqr = describe::quantile_sorted(sorted, 0.75) - describe::quantile_sorted(sorted, 0.25);
+    let bins = if iqr > 0.0 {
+        ((hi - lo) / (2.0 * iqr * (n as f64).powf(-1.0 / 3.0))).ceil()
+    } else {
+        (n as f64).log2().ceil() + 1.0
+    };
+    (bins as usize).clamp(1, PLOT_BINS)
 }
 
 fn histogram(sorted: &[f64], bins: usize) -> (Vec<f64>, Vec<u64>) {
@@ -796,5 +824,34 @@ fn plot_data(
                 Some(PairedPlot { pairs, sampled }),
             )
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn bins_follow_freedman_diaconis() {
+        // 1..=23: IQR (type 7) = 17.5 − 6.5 = 11, width 2·11·23^(−1/3) ≈ 7.74,
+        // range 22 → ⌈2.84⌉ = 3 bins (worked by hand from Freedman &
+        // Diaconis 1981; numpy's `histogram_bin_edges(bins="fd")` documents
+        // the same width).
+        let x: Vec<f64> = (1..=23).map(f64::from).collect();
+        assert_eq!(bin_count(&x), 3);
+        let (edges, counts) = histogram(&x, bin_count(&x));
+        assert_eq!(edges.len(), 4);
+        assert_eq!(counts.iter().sum::<u64>(), 23);
+    }
+
+    #[test]
+    fn tied_quartiles_fall_back_to_sturges() {
+        // Sturges (1926): ⌈log₂ 16⌉ + 1 = 5.
+        let mut x = vec![2.0; 14];
+        x.push(0.0);
+        x.push(9.0);
+        x.sort_by(f64::total_cmp);
+        assert_eq!(bin_count(&x), 5);
+        assert_eq!(bin_count(&[1.0]), 1);
     }
 }

@@ -87,7 +87,7 @@ pub(crate) struct Answer {
     pub alpha: f64,
     /// Effect size (Cohen's d, or d_z) as a size in the tested direction:
     /// never negative, whatever the alternative, the same convention as
-    /// `--effect` (a `less` test of 0.5 plans a difference of −0.5 SD).
+    /// `--smallest-effect` (a `less` test of 0.5 plans a difference of −0.5 SD).
     pub effect: f64,
     /// Sizes: `[n₁, n₂]` for independent designs, `[n]` otherwise.
     pub n: Vec<usize>,
@@ -135,14 +135,14 @@ pub(crate) fn answer(q: &Question) -> Result<Answer> {
         .filter(|b| **b)
         .count();
     if given != 2 {
-        return Err(Failure::input("give exactly two of --effect, --power and --n; the third is solved for")
-            .help("--effect and --power give the sample size; --effect and --n give the power; --n and --power give the smallest detectable effect"));
+        return Err(Failure::input("give exactly two of --smallest-effect, --chance-to-detect and --units; the third is solved for")
+            .help("--smallest-effect and --chance-to-detect give the sample size; --smallest-effect and --units give the power; --units and --chance-to-detect give the smallest detectable effect"));
     }
     if q.design != Design::Independent && (q.sd_ratio.is_some() || q.ratio != 1.0) {
-        return Err(
-            Failure::input("--ratio and --sd-ratio apply to independent designs only")
-                .help("leave them out for paired and one-sample designs"),
-        );
+        return Err(Failure::input(
+            "--second-per-first and --sd-ratio apply to independent designs only",
+        )
+        .help("leave them out for paired and one-sample designs"));
     }
     let pd = power_design(q.design, q.ratio);
     let welch = q.sd_ratio;
@@ -374,7 +374,7 @@ mod tests {
         // One-sided tests need fewer units than two-sided ones.
         assert!(a.n[0] < 64);
         // Solving for the effect: the same positive size for `less` as for
-        // `greater` (the two tests mirror each other), as `--effect` takes it.
+        // `greater` (the two tests mirror each other), as `--smallest-effect` takes it.
         let mut less = q(None, Some(0.8), Some(30));
         less.design = Design::Paired;
         less.alternative = Alternative::Less;
@@ -388,7 +388,7 @@ mod tests {
             l.effect,
             g.effect
         );
-        // And feeding that answer back as --effect gives the power asked for.
+        // And feeding that answer back as --smallest-effect gives the power asked for.
         let mut back = q(Some(l.effect), None, Some(30));
         back.design = Design::Paired;
         back.alternative = Alternative::Less;

@@ -109,22 +109,23 @@ pub(crate) enum Command {
         #[arg(long, value_name = "URL", conflicts_with_all = ["unlocked", "expect_same"])]
         tsa: Vec<String>,
     },
-    /// Plan a sample size: give two of --effect, --power and --n, and the
+    /// Plan a sample size: give two of --smallest-effect, --chance-to-detect and --units, and the
     /// third is solved for with the exact noncentral t distribution.
     Power {
         /// The design of the comparison.
         #[arg(long, value_enum)]
         design: crate::plan::Design,
-        /// Smallest effect of interest: Cohen's d (d_z for paired designs),
-        /// as a size in the tested direction.
-        #[arg(long)]
+        /// The smallest effect worth detecting: Cohen's d (d_z for paired
+        /// designs), as a size in the tested direction.
+        #[arg(long = "smallest-effect", value_name = "D")]
         effect: Option<f64>,
-        /// Target power, e.g. 0.9.
-        #[arg(long)]
+        /// The chance you want of detecting that effect if it is there
+        /// (power), e.g. 0.9.
+        #[arg(long = "chance-to-detect", value_name = "P")]
         power: Option<f64>,
-        /// Size of the first group (independent) or the number of pairs or
-        /// values.
-        #[arg(long)]
+        /// The units you can have: the first group (independent designs),
+        /// the pairs, or the values.
+        #[arg(long = "units", value_name = "N")]
         n: Option<usize>,
         /// Significance level.
         #[arg(long, default_value_t = 0.05)]
@@ -132,8 +133,9 @@ pub(crate) enum Command {
         /// Sidedness of the planned test.
         #[arg(long, value_enum, default_value = "two-sided")]
         alternative: AlternativeArg,
-        /// Allocation ratio n₂/n₁ (independent designs).
-        #[arg(long, default_value_t = 1.0)]
+        /// Units in the second group for each unit in the first
+        /// (independent designs; 1 for equal groups).
+        #[arg(long = "second-per-first", value_name = "R", default_value_t = 1.0)]
         ratio: f64,
         /// Planned ratio of SDs (second/first): plan for Welch's test.
         #[arg(long)]

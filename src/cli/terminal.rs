@@ -158,24 +158,25 @@ pub(crate) fn run_summary(o: &RunOutcome, colour: bool) -> String {
         let (symbol, effect_value) = match eff.name {
             EffectKind::CohenD => ("d", apa::two(eff.value)),
             EffectKind::HedgesG => ("g", apa::two(eff.value)),
-            EffectKind::DZ => ("dz", apa::two(eff.value)),
+            EffectKind::DZ => ("d_z", apa::two(eff.value)),
             EffectKind::RankBiserial => ("r", apa::bounded(eff.value, 2)),
             EffectKind::ProbabilityOfSuperiority => ("PS", apa::bounded(eff.value, 2)),
-            EffectKind::RobustD => ("dR", apa::two(eff.value)),
+            EffectKind::RobustD => ("d_R", apa::two(eff.value)),
         };
-        // A difference, or for Brunner–Munzel the probability of
-        // superiority, which is not a difference.
-        let (what, fmt) = if est.name.in_outcome_units() {
-            ("diff", apa::two as fn(f64) -> String)
+        // A difference, shown to the data's resolution, or for
+        // Brunner–Munzel the probability of superiority, which is not one.
+        let decimals = apa::measured(h.recorded_decimals);
+        let (what, f): (&str, Box<dyn Fn(f64) -> String>) = if est.name.in_outcome_units() {
+            ("diff", Box::new(move |x| apa::fixed(x, decimals)))
         } else {
-            ("PS", (|x| apa::bounded(x, 2)) as fn(f64) -> String)
+            ("PS", Box::new(|x| apa::bounded(x, 2)))
         };
         s.push_str(&format!(
             "{:<width$}  {}  {what} {} {}  {} {}  p {}  {}\n",
             clean(&h.id),
             h.method.as_str(),
-            fmt(est.value),
-            apa::bounds(est.ci_low, est.ci_high, fmt),
+            f(est.value),
+            apa::ci(est.confidence, est.ci_low, est.ci_high, &f),
             symbol,
             effect_value,
             apa::p_number(h.p_adjusted),

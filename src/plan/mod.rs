@@ -15,6 +15,7 @@ use crate::stats::multiplicity::Correction;
 use crate::stats::rank_tests::{RankOptions, ZeroRule};
 use crate::stats::Alternative;
 use serde::{Deserialize, Serialize};
+use std::collections::BTreeMap;
 use std::path::PathBuf;
 
 /// The version of the analysis-file format this build reads.
@@ -331,6 +332,14 @@ pub struct Hypothesis {
     /// Measurement unit shown with values (e.g. "ml").
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub units: Option<String>,
+    /// Decimals the outcome was recorded with (0 to 6), when the reports
+    /// should not find them from the values.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub decimals: Option<u32>,
+    /// What the reports call each group, condition or column in sentences,
+    /// tables and figures (level or column name → words).
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub names: BTreeMap<String, String>,
     /// Whether to add the other methods for this design as robustness checks.
     pub robustness: bool,
     /// Conventions of the rank and robust methods; every one absent (and

@@ -145,6 +145,10 @@ pub(crate) struct RawHypothesis {
     pub label: Option<String>,
     /// Measurement unit.
     pub units: Option<String>,
+    /// Decimals the outcome was recorded with.
+    pub decimals: Option<Spanned<i64>>,
+    /// Display names of the groups, conditions or columns.
+    pub names: Option<Spanned<std::collections::BTreeMap<String, String>>>,
     /// Robustness analyses on/off.
     pub robustness: Option<bool>,
     /// Signed-rank zero rule: `drop` or `keep-in-ranking`.

@@ -5,7 +5,7 @@
 use super::raw::{Num, RawData, RawDeviation, RawExclude, RawFile, RawHypothesis, RawPlanning};
 use super::*;
 use crate::error::{capped_message, line_col, shown, Failure, Result};
-use std::collections::HashSet;
+use std::collections::{BTreeMap, HashSet};
 use std::path::Path;
 use toml::Spanned;
 
@@ -15,6 +15,9 @@ use toml::Spanned;
 /// confirmatory plan rarely needs more, and a larger set splits naturally
 /// into several files run as one folder.
 pub const MAX_HYPOTHESES: usize = 200;
+/// The most decimals a plan may declare for an outcome (`decimals`), and
+/// the most the reports look for in the values.
+pub const MAX_DECIMALS: u32 = 6;
 
 /// Reads, parses and validates an analysis file.
 pub(crate) fn load(path: &Path) -> Result<AnalysisFile> {
@@ -803,7 +806,18 @@ impl Checker<'_> {
                 Some([v[0].0, v[1].0])
             }
         };
-        Ok(Hypothesis {
+        let decimals = match &r.decimals {
+            None => None,
+            Some(d) => match u32::try_from(*d.get_ref()) {
+                Ok(v) if v <= MAX_DECIMALS => Some(v),
+                _ => {
+                    return Err(self
+                        .at(d, format!("`decimals` must be a whole number from 0 to {MAX_DECIMALS}"))
+                        .help("give the decimals the outcome was recorded with, e.g. `decimals = 1` for 1828.4, or remove the key to let attest find them from the values"))
+                }
+            },
+        };
+        let mut h_out = Hypothesis {
             id,
             claim,
             design,
@@ -814,13 +828,35 @@ impl Checker<'_> {
             equivalence,
             label: r.label.clone(),
             units: r.units.clone(),
+            decimals,
+            names: BTreeMap::new(),
             robustness: r.robustness.unwrap_or(true),
             conventions: self.conventions(design, method, r)?,
             planning: match &r.planning {
                 Some(p) => Some(self.planning(design, method, p)?),
                 None => None,
             },
-        })
+        };
+        if let Some(names) = &r.names {
+            let sets = h_out.set_names();
+            for (key, words) in names.get_ref() {
+                if !sets.contains(key) || words.trim().is_empty() {
+                    return Err(self
+                        .at(
+                            names,
+                            format!(
+                                "`names` gives {} for \"{}\", which is not one of this hypothesis's sets ({})",
+                                if words.trim().is_empty() { "no words" } else { "words" },
+                                shown(key),
+                                sets.iter().map(|s| format!("\"{}\"", shown(s))).collect::<Vec<_>>().join(", ")
+                            ),
+                        )
+                        .help("name each group, condition or column as the data spell it, with the words to show, e.g. `names = { long = \"90-minute proof\" }`"));
+                }
+            }
+            h_out.names = names.get_ref().clone();
+        }
+        Ok(h_out)
     }
 
     /// The rank and robust conventions of a hypothesis; a stated default

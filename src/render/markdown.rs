@@ -84,6 +84,12 @@ pub(crate) fn escape_paragraphs(text: &str) -> String {
 /// Converts Markdown to an HTML fragment. Raw HTML is shown as text; an
 /// image whose destination is a key of `figures` becomes that inline SVG
 /// inside a `<figure>`; any other image becomes its alt text.
+/// Inline tags the view writes: a subscript (`*d*<sub>z</sub>`).
+const ALLOWED_INLINE: [&str; 2] = ["<sub>", "</sub>"];
+/// Block tags the templates write around a numbered table or figure and its
+/// title and note, so that print keeps them on one page.
+const ALLOWED_BLOCK: [&str; 2] = ["<div class=\"keep\">", "</div>"];
+
 pub(crate) fn to_html(markdown: &str, figures: &BTreeMap<String, String>) -> String {
     let mut events: Vec<Event> = Vec::new();
     let mut image: Option<(String, String)> = None;
@@ -104,6 +110,12 @@ pub(crate) fn to_html(markdown: &str, figures: &BTreeMap<String, String>) -> Str
             Event::Start(Tag::Image { dest_url, .. }) => {
                 image = Some((dest_url.to_string(), String::new()));
             }
+            // The view writes exactly these tags; user text cannot (its
+            // `<` is escaped). Every other tag is shown as text.
+            Event::InlineHtml(t) if ALLOWED_INLINE.contains(&&*t) => {
+                events.push(Event::InlineHtml(t))
+            }
+            Event::Html(t) if ALLOWED_BLOCK.contains(&t.trim_end()) => events.push(Event::Html(t)),
             Event::Html(t) | Event::InlineHtml(t) => events.push(Event::Text(t)),
             other => events.push(other),
         }
@@ -162,6 +174,19 @@ mod tests {
         assert_eq!(escape("0.1.0"), "0.1.0");
         assert_eq!(escape("-5 degrees"), "-5 degrees");
         assert_eq!(escape("snake_case"), "snake\\_case");
+    }
+
+    #[test]
+    fn only_the_views_own_tags_pass() {
+        let out = html("*d*<sub>z</sub> = 0.4\n\n<div class=\"keep\">\n\n**Table 1**\n\n</div>\n");
+        assert!(out.contains("<em>d</em><sub>z</sub>"), "{out}");
+        assert!(
+            out.contains("<div class=\"keep\">") && out.contains("</div>"),
+            "{out}"
+        );
+        let out = html("<sub onclick=\"x\">z</sub> <div class=\"other\">\n");
+        assert!(!out.contains("<sub onclick"), "{out}");
+        assert!(!out.contains("<div class=\"other\">"), "{out}");
     }
 
     #[test]

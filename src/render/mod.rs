@@ -10,6 +10,7 @@
 //! Markdown; HTML is produced from the Markdown (see [`markdown`]), so both
 //! outputs say the same thing.
 
+mod axis;
 pub(crate) mod markdown;
 mod markdown_report;
 mod plan_doc;

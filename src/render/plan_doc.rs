@@ -1,10 +1,15 @@
 //! The preregistration document, rendered from a lock.
 //!
-//! It states, before any data are analysed, what will be compared, each
-//! hypothesis in words and as formulas, how the test is chosen, who is
-//! excluded, how many units are planned, and the lock itself. Everything
-//! comes from the locked plan, so the document cannot say more than the
-//! lock holds.
+//! It is organised around the decisions the plan commits to, one block
+//! per hypothesis: the claim in words and as formulas; the rule, written
+//! as an if–then, that says what result will count as support; what can
+//! change the rule (the checks and where each sends the test, the
+//! exclusions with their reasons); and what is fixed in numbers. It ends
+//! with what would make the analysis change and with the seal. A reader
+//! sees at once what would count as support and what would not, rather
+//! than answering a list of questions in a set order. Everything comes
+//! from the locked plan, so the document cannot say more than the lock
+//! holds.
 
 use super::markdown::{escape, escape_paragraphs};
 use super::view::apa;
@@ -30,13 +35,32 @@ pub(super) fn render(
         .enumerate()
         .map(|(i, h)| {
             md(match planned.get(i).and_then(Option::as_ref) {
-                Some(pl) => format!(
-                    "{}: {}",
-                    escape(&h.id),
+                Some(pl) => {
                     super::view::planning::planned_sentence(pl, h.design, p.alpha, h.alternative)
-                ),
-                None => format!("{}: not stated in the plan.", escape(&h.id)),
+                }
+                None => "not stated in the plan.".to_string(),
             })
+        })
+        .collect();
+    let blocks: Vec<Value> = p
+        .hypotheses
+        .iter()
+        .zip(&sizes)
+        .map(|(h, size)| {
+            let mut lines = hypothesis(h, p.confidence);
+            lines.remove(0);
+            // Inside its own block a line needs no hypothesis id in front.
+            let prefix = format!("{}: ", escape(&h.id));
+            let bare = |s: String| md(s.strip_prefix(&prefix).map(str::to_string).unwrap_or(s));
+            minijinja::context! {
+                head => md(format!("{}: {}", escape(&h.id), escape(&h.claim))),
+                compared => bare(super::view::sentence::capitalise(&compared(h).replacen(&prefix, "", 1))),
+                claim => lines,
+                rule => md(if_then(h, p)),
+                choice => bare(choice(h, p.check_alpha)),
+                numbers => md(numbers(h, p)),
+                size => size.clone(),
+            }
         })
         .collect();
     let ctx = minijinja::context! {
@@ -44,9 +68,7 @@ pub(super) fn render(
         authors => p.authors.join(", "),
         summary => p.summary.as_deref().map(|s| md(escape_paragraphs(s))),
         data_path => p.data.path.clone(),
-        compared => p.hypotheses.iter().map(|h| md(compared(h))).collect::<Vec<_>>(),
-        hypotheses => p.hypotheses.iter().map(|h| hypothesis(h, p.confidence)).collect::<Vec<_>>(),
-        choice => p.hypotheses.iter().map(|h| md(choice(h, p.check_alpha))).collect::<Vec<_>>(),
+        blocks => blocks,
         thresholds => md(format!(
             "Each hypothesis is judged at α = {}; intervals are {} intervals; {}. Seed for anything resampled: {}.",
             apa::bounded(p.alpha, 3).trim_end_matches('0'),
@@ -57,7 +79,6 @@ pub(super) fn render(
             p.seed
         )),
         exclusions => p.exclude.iter().map(|r| md(exclusion(r))).collect::<Vec<_>>(),
-        sizes => sizes,
         lock_hash => lock.plan_sha256.clone(),
         lock_content => lock.content_sha256.clone(),
         locked_at => lock.locked_at.clone(),
@@ -88,7 +109,7 @@ fn labels(h: &Hypothesis) -> (String, String) {
             (escape(&levels[0]), escape(&levels[1]))
         }
         Comparison::PairedColumns { first, second } => (escape(first), escape(second)),
-        Comparison::Reference { reference } => ("the sample".into(), apa::two(*reference)),
+        Comparison::Reference { reference } => ("the sample".into(), apa::stated(*reference)),
     }
 }
 
@@ -145,7 +166,7 @@ fn hypothesis(h: &Hypothesis, _confidence: f64) -> Vec<Value> {
     let mut lines = vec![md(format!("**{}:** {}", escape(&h.id), escape(&h.claim)))];
     match h.equivalence {
         Some([low, high]) => {
-            let (l, u) = (apa::two(low), apa::two(high));
+            let (l, u) = (apa::stated(low), apa::stated(high));
             lines.push(md(format!("Null: {delta} ≤ {l} or {delta} ≥ {u}")));
             lines.push(md(format!("Alternative: {l} < {delta} < {u}")));
             let (l, u) = if h.method == Method::BrunnerMunzel {
@@ -200,6 +221,85 @@ fn hypothesis(h: &Hypothesis, _confidence: f64) -> Vec<Value> {
         )));
     }
     lines
+}
+
+/// The hypothesis's rule as an if–then: what result will count as
+/// support, and what will not.
+fn if_then(h: &Hypothesis, p: &crate::plan::Plan) -> String {
+    let alpha = apa::bounded(p.alpha, 3);
+    let alpha = alpha.trim_end_matches('0');
+    let id = escape(&h.id);
+    let test = match h.method {
+        Method::Checked => "the test the checks choose".to_string(),
+        // A name in the possessive ("Welch's t test") takes no article.
+        m if method_name(m).contains("'s ") => method_name(m),
+        m => format!("the {}", method_name(m)),
+    };
+    let adjusted = super::view::sentence::correction_method(p.correction)
+        .filter(|_| p.hypotheses.len() > 1)
+        .map(|m| format!(", after adjusting across the hypotheses with {m},"))
+        .unwrap_or_default();
+    let (a, b) = labels(h);
+    match h.equivalence {
+        Some([low, high]) => {
+            // What the bounds are on: the method's estimate.
+            let (what, lo, hi, unit) = match h.method {
+                Method::BrunnerMunzel => (
+                    "the probability of superiority θ",
+                    apa::bounded(low, 2),
+                    apa::bounded(high, 2),
+                    String::new(),
+                ),
+                m => (
+                    match m {
+                        Method::MannWhitney => "the Hodges–Lehmann shift",
+                        Method::WilcoxonSignedRank => "the Hodges–Lehmann estimate",
+                        Method::TrimmedT => "the trimmed mean difference",
+                        _ => "the difference",
+                    },
+                    apa::stated(low),
+                    apa::stated(high),
+                    units(h),
+                ),
+            };
+            format!(
+                "If the {} confidence interval of {what} (1 − 2α) lies wholly inside {lo} to {hi}{unit}, so that both one-sided tests give *p* below {alpha}, we will say {id} is supported: {what} is equivalent within the bounds. Otherwise we will say it is not shown equivalent; a difference that is merely not significant is not evidence of equivalence.",
+                apa::level(1.0 - 2.0 * p.alpha),
+            )
+        }
+        None => match h.alternative {
+            Alternative::TwoSided => format!(
+                "If the two-sided *p* of {test}{adjusted} is below {alpha}, we will say {id} is supported, in whichever direction the estimate lies. Otherwise we will say it is not supported, which does not show that there is no difference."
+            ),
+            Alternative::Greater | Alternative::Less => {
+                let way = match (h.alternative == Alternative::Greater, h.method.is_rank()) {
+                    (true, false) => "is higher",
+                    (false, false) => "is lower",
+                    (true, true) => "tends to be higher",
+                    (false, true) => "tends to be lower",
+                };
+                format!(
+                    "If the one-sided *p* of {test}{adjusted} is below {alpha}, so that {a} {way} than {b}, we will say {id} is supported. Otherwise we will say it is not supported, and if the estimate lies the other way we will say so; a difference in the other direction never counts as support."
+                )
+            }
+        },
+    }
+}
+
+/// What the plan fixes in numbers for one hypothesis.
+fn numbers(h: &Hypothesis, p: &crate::plan::Plan) -> String {
+    let alpha = apa::bounded(p.alpha, 3);
+    let sided = match (h.equivalence, h.alternative) {
+        (Some(_), _) => "two one-sided tests",
+        (None, Alternative::TwoSided) => "two-sided",
+        (None, _) => "one-sided",
+    };
+    format!(
+        "α = {}, {sided}; intervals at {}; assumption checks at α = {}.",
+        alpha.trim_end_matches('0'),
+        apa::level(p.confidence),
+        apa::bounded(p.check_alpha, 2),
+    )
 }
 
 fn units(h: &Hypothesis) -> String {
@@ -279,11 +379,11 @@ fn choice_words(h: &Hypothesis, check_alpha: f64) -> String {
     };
     match h.design {
         Design::Independent => format!(
-            "{id}: Shapiro–Wilk on each group and Brown–Forsythe on the spread, each judged at α = {a}. If normality is rejected in either group → {fallback}; if normality holds and the spread differs → Welch's t-test; if both hold → Student's t-test; if a check cannot run (too few values) → Welch's t-test."
+            "{id}: Shapiro–Wilk on each group and Brown–Forsythe on the spread, each judged at α = {a}. If normality is rejected in either group → {fallback}; if normality holds and the spread differs → Welch's *t* test; if both hold → Student's *t* test; if a check cannot run (too few values) → Welch's *t* test."
         ),
         _ => format!(
             "{id}: Shapiro–Wilk on the differences, judged at α = {a}. If normality is rejected → Wilcoxon signed-rank test; otherwise, or if the check cannot run → {}.",
-            if h.design == Design::Paired { "paired t-test" } else { "one-sample t-test" }
+            if h.design == Design::Paired { "paired *t* test" } else { "one-sample *t* test" }
         ),
     }
 }

@@ -8,7 +8,18 @@
 //! "Color Universal Design", chosen because it stays distinguishable for
 //! the common forms of colour blindness. Jitter is a fixed low-discrepancy
 //! sequence, never random, so the same results give the same bytes.
+//!
+//! **Designed width.** Every figure is drawn for the text block of a
+//! single-column A4 page with 2.5 cm margins, 16 cm wide (a Letter page
+//! with 1 in margins is 16.5 cm, so the same figure fits): the SVG says
+//! `width="16cm"` over a 520-unit view box, so one unit prints as
+//! 16/520 cm ≈ 0.87 pt. The smallest text (tick labels) is
+//! [`TICK_FONT`]/1.24 ≈ 11.3 units (plotters writes a font's size divided
+//! by 1.24), about 9.8 pt printed, above the 8 pt minimum that
+//! `tests/render.rs` and the browser test in `tests/reports.rs` check. Axis titles and
+//! panel titles are larger. Ticks come from [`super::axis`].
 
+use super::axis::Axis;
 use super::view::{FigureRole, FigureView};
 use crate::results::{HypothesisResult, PlotData, Results};
 use plotters::coord::Shift;
@@ -39,13 +50,31 @@ const VERMILLION: RGBColor = RGBColor(0xD5, 0x5E, 0x00);
 const GREY: RGBColor = RGBColor(0x55, 0x55, 0x55);
 const PALETTE: [RGBColor; 2] = [BLUE, ORANGE];
 
+/// Width of every figure's view box, in SVG units.
+pub(crate) const VIEW_WIDTH: u32 = 520;
+/// The printed width every figure is designed for, in centimetres: the
+/// text block of a single-column A4 page with 2.5 cm margins.
+pub(crate) const PRINT_WIDTH_CM: f64 = 16.0;
+/// plotters font sizes (the SVG gets these divided by 1.24).
+const TICK_FONT: f64 = 14.0;
+const TITLE_FONT: f64 = 15.0;
+
+fn tick_font() -> TextStyle<'static> {
+    TextStyle::from(("sans-serif", TICK_FONT).into_font())
+}
+
+fn title_font() -> TextStyle<'static> {
+    TextStyle::from(("sans-serif", TITLE_FONT).into_font())
+}
+
 /// Draws one figure: the drawing its role names, from the model's plot
 /// data, with the view's words.
 pub(crate) fn draw(r: &Results, f: &FigureView) -> String {
     let h = &r.hypotheses[f.hypothesis];
     let size = match f.role {
-        FigureRole::Qq => (520, 280),
-        _ => (520, 300),
+        FigureRole::Qq => (VIEW_WIDTH, 300),
+        FigureRole::Methods => (VIEW_WIDTH, 60 + 44 * f.categories.len() as u32),
+        _ => (VIEW_WIDTH, 320),
     };
     let mut buf = String::new();
     let drawn = {
@@ -62,13 +91,50 @@ pub(crate) fn draw(r: &Results, f: &FigureView) -> String {
                     None => Ok(()),
                 },
                 FigureRole::Difference => difference(&root, h, f),
+                FigureRole::Methods => methods(&root, h, f),
             });
         r.and_then(|_| root.present().map_err(Into::into))
     };
     if drawn.is_err() {
         buf = placeholder(size);
     }
-    label_svg(&buf, &f.id, &f.title, &f.note)
+    label_svg(
+        &italic_symbols(&printed_size(&buf, size)),
+        &f.id,
+        &f.title,
+        &f.note,
+    )
+}
+
+/// Sets the statistic in a test's name in italics inside the drawing, as
+/// the text around it does ("Welch's *t* test"; APA Publication Manual,
+/// 7th ed., §6.44). plotters writes each label as one `<text>`; the
+/// symbol becomes an italic `<tspan>` within it. Run before the `<title>`
+/// and `<desc>` are added, which stay plain text.
+fn italic_symbols(svg: &str) -> String {
+    let mut out = svg.to_string();
+    for symbol in ["t", "U"] {
+        out = out.replace(
+            &format!(" {symbol} test"),
+            &format!(" <tspan font-style=\"italic\">{symbol}</tspan> test"),
+        );
+    }
+    out
+}
+
+/// Gives the SVG its printed size (see the module comment) in place of
+/// plotters' pixel size; the view box keeps the drawing's units.
+fn printed_size(svg: &str, size: (u32, u32)) -> String {
+    let cm = |units: u32| {
+        let v = PRINT_WIDTH_CM * units as f64 / VIEW_WIDTH as f64;
+        let s = format!("{v:.2}");
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    };
+    svg.replacen(
+        &format!("width=\"{}\" height=\"{}\"", size.0, size.1),
+        &format!("width=\"{}cm\" height=\"{}cm\"", cm(size.0), cm(size.1)),
+        1,
+    )
 }
 
 type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
@@ -129,6 +195,37 @@ fn jitter(i: usize) -> f64 {
     ((i as f64 * 0.618_033_988_749_895).fract() - 0.5) * 0.36
 }
 
+/// Applies the report's text sizes and the axes' own tick labels to a mesh.
+macro_rules! styled_mesh {
+    ($chart:expr) => {
+        $chart
+            .configure_mesh()
+            .label_style(tick_font())
+            .axis_desc_style(title_font())
+            .light_line_style(WHITE)
+            .bold_line_style(WHITE.mix(0.0))
+    };
+}
+
+/// A categorical axis: one tick per category, at 0, 1, …
+fn categories(k: usize) -> Axis {
+    Axis {
+        lo: -0.5,
+        hi: k.max(1) as f64 - 0.5,
+        ticks: (0..k.max(1)).map(|i| i as f64).collect(),
+        decimals: 0,
+    }
+}
+
+fn category_label(labels: &[String], x: f64) -> String {
+    let i = x.round();
+    if (x - i).abs() < 1e-6 && i >= 0.0 {
+        labels.get(i as usize).cloned().unwrap_or_default()
+    } else {
+        String::new()
+    }
+}
+
 fn groups(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
     let sets = &h.plot;
     let k = sets.len().max(1);
@@ -141,25 +238,17 @@ fn groups(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
     all.extend(h.reference);
     let (lo, hi) = span(all);
     let labels = &f.categories;
+    let y = Axis::nice(lo, hi, 6);
     let mut chart = ChartBuilder::on(area)
         .margin(12)
-        .x_label_area_size(28)
-        .y_label_area_size(56)
-        .build_cartesian_2d(-0.5f64..(k as f64 - 0.5), lo..hi)?;
-    chart
-        .configure_mesh()
+        .x_label_area_size(52)
+        .y_label_area_size(72)
+        .build_cartesian_2d(categories(k), y)?;
+    styled_mesh!(chart)
         .disable_x_mesh()
-        .x_labels(k)
-        .x_label_formatter(&|x| {
-            let i = x.round();
-            if (x - i).abs() < 1e-6 && i >= 0.0 {
-                labels.get(i as usize).cloned().unwrap_or_default()
-            } else {
-                String::new()
-            }
-        })
+        .x_label_formatter(&|x| category_label(labels, *x))
+        .x_desc(&f.other_axis)
         .y_desc(&f.value_axis)
-        .light_line_style(WHITE)
         .draw()?;
     for (gi, p) in sets.iter().enumerate() {
         let x0 = gi as f64;
@@ -217,19 +306,18 @@ fn qq(area: &Area, sets: &[PlotData], f: &FigureView) -> DrawResult {
         let sorted = &p.points;
         let (xlo, xhi) = span(xs.iter().copied().chain([-1.0, 1.0]));
         let (ylo, yhi) = span(sorted.iter().copied());
+        let (x, y) = (Axis::nice(xlo, xhi, 5), Axis::nice(ylo, yhi, 5));
+        let (xlo, xhi) = (x.lo, x.hi);
         let caption = f.categories.get(gi).map_or("", String::as_str);
         let mut chart = ChartBuilder::on(panel)
-            .caption(caption, ("sans-serif", 14))
+            .caption(caption, title_font())
             .margin(10)
-            .x_label_area_size(30)
-            .y_label_area_size(48)
-            .build_cartesian_2d(xlo..xhi, ylo..yhi)?;
-        chart
-            .configure_mesh()
+            .x_label_area_size(48)
+            .y_label_area_size(68)
+            .build_cartesian_2d(x, y)?;
+        styled_mesh!(chart)
             .x_desc(&f.other_axis)
-            .x_labels(5)
-            .y_labels(5)
-            .light_line_style(WHITE)
+            .y_desc(&f.value_axis)
             .draw()?;
         if let Some(line) = p.qq.line {
             let at = |z: f64| line.intercept + line.slope * z;
@@ -247,28 +335,76 @@ fn qq(area: &Area, sets: &[PlotData], f: &FigureView) -> DrawResult {
     Ok(())
 }
 
+/// One interval drawn on a horizontal axis at height `y`: a bar with end
+/// marks, an arrow where a side is open, and the estimate as a dot.
+fn interval<DB: DrawingBackend>(
+    chart: &mut ChartContext<'_, DB, Cartesian2d<Axis, Axis>>,
+    y: f64,
+    value: f64,
+    (low, high): (Option<f64>, Option<f64>),
+    (lo, hi): (f64, f64),
+    colour: RGBColor,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    let left = low.unwrap_or(lo);
+    let right = high.unwrap_or(hi);
+    chart.draw_series(std::iter::once(PathElement::new(
+        vec![(left, y), (right, y)],
+        colour.stroke_width(3),
+    )))?;
+    let dx = (hi - lo) * 0.025;
+    for (bound, edge, dir) in [(low, lo, -1.0), (high, hi, 1.0)] {
+        match bound {
+            Some(b) => chart.draw_series(std::iter::once(PathElement::new(
+                vec![(b, y - 0.08), (b, y + 0.08)],
+                colour.stroke_width(3),
+            )))?,
+            None => chart.draw_series(std::iter::once(Polygon::new(
+                vec![
+                    (edge, y),
+                    (edge - dir * dx, y - 0.07),
+                    (edge - dir * dx, y + 0.07),
+                ],
+                colour.filled(),
+            )))?,
+        };
+    }
+    chart.draw_series(std::iter::once(Circle::new((value, y), 6, colour.filled())))?;
+    Ok(())
+}
+
+/// The interval a figure of the difference draws: with equivalence bounds,
+/// the 1 − 2α interval the two one-sided tests rest on; otherwise the
+/// estimate's own interval.
+fn drawn_interval(h: &HypothesisResult) -> (Option<f64>, Option<f64>) {
+    match &h.equivalence {
+        Some(eq) => (Some(eq.ci_low), Some(eq.ci_high)),
+        None => (h.estimate.ci_low, h.estimate.ci_high),
+    }
+}
+
 fn difference(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
     let e = &h.estimate;
     // The value of no difference: 0, or ½ for a probability of superiority.
     let null = e.name.null_value();
+    let (low, high) = drawn_interval(h);
     let mut vals = vec![null, e.value];
-    vals.extend(e.ci_low);
-    vals.extend(e.ci_high);
+    vals.extend(low);
+    vals.extend(high);
     if let Some(eq) = &h.equivalence {
-        vals.extend([eq.low, eq.high, eq.ci_low, eq.ci_high]);
+        vals.extend([eq.low, eq.high]);
     }
     let (lo, hi) = span(vals);
+    let x = Axis::nice(lo, hi, 7);
+    let (lo, hi) = (x.lo, x.hi);
     let mut chart = ChartBuilder::on(area)
         .margin(14)
-        .x_label_area_size(34)
+        .x_label_area_size(52)
         .y_label_area_size(10)
-        .build_cartesian_2d(lo..hi, 0f64..1f64)?;
-    chart
-        .configure_mesh()
+        .build_cartesian_2d(x, Axis::nice(0.0, 1.0, 2))?;
+    styled_mesh!(chart)
         .disable_y_mesh()
         .disable_y_axis()
         .x_desc(&f.value_axis)
-        .light_line_style(WHITE)
         .draw()?;
     chart.draw_series(dashed((null, 0.0), (null, 1.0)))?;
     if let Some(eq) = &h.equivalence {
@@ -279,31 +415,65 @@ fn difference(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
             }))?;
         }
     }
-    let y = 0.5;
-    let left = e.ci_low.unwrap_or(lo);
-    let right = e.ci_high.unwrap_or(hi);
-    chart.draw_series(std::iter::once(PathElement::new(
-        vec![(left, y), (right, y)],
-        BLUE.stroke_width(3),
-    )))?;
-    let dx = (hi - lo) * 0.025;
-    for (bound, edge, dir) in [(e.ci_low, lo, -1.0), (e.ci_high, hi, 1.0)] {
-        match bound {
-            Some(b) => chart.draw_series(std::iter::once(PathElement::new(
-                vec![(b, y - 0.08), (b, y + 0.08)],
-                BLUE.stroke_width(3),
-            )))?,
-            None => chart.draw_series(std::iter::once(Polygon::new(
-                vec![
-                    (edge, y),
-                    (edge - dir * dx, y - 0.07),
-                    (edge - dir * dx, y + 0.07),
-                ],
-                BLUE.filled(),
-            )))?,
-        };
+    interval(&mut chart, 0.5, e.value, (low, high), (lo, hi), BLUE)?;
+    Ok(())
+}
+
+/// Each method's estimate and interval on one axis: the preregistered
+/// method first (blue), every other method below it (grey).
+fn methods(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
+    let tests = crate::render::view::methods_drawn(h);
+    let null = h.test.estimate.name.null_value();
+    let mut vals = vec![null];
+    for t in &tests {
+        vals.push(t.estimate.value);
+        vals.extend(t.estimate.ci_low);
+        vals.extend(t.estimate.ci_high);
     }
-    chart.draw_series(std::iter::once(Circle::new((e.value, y), 6, BLUE.filled())))?;
+    let (lo, hi) = span(vals);
+    let x = Axis::nice(lo, hi, 7);
+    let (lo, hi) = (x.lo, x.hi);
+    let k = tests.len();
+    // Rows from the top: row i sits at height k − 1 − i.
+    let y = Axis {
+        lo: -0.6,
+        hi: k as f64 - 0.4,
+        ticks: (0..k).map(|i| i as f64).collect(),
+        decimals: 0,
+    };
+    let labels = &f.categories;
+    let label = |v: &f64| {
+        let i = v.round();
+        if (v - i).abs() < 1e-6 && i >= 0.0 && (i as usize) < k {
+            labels.get(k - 1 - i as usize).cloned().unwrap_or_default()
+        } else {
+            String::new()
+        }
+    };
+    let mut chart = ChartBuilder::on(area)
+        .margin(12)
+        .x_label_area_size(52)
+        .y_label_area_size(190)
+        .build_cartesian_2d(x, y)?;
+    styled_mesh!(chart)
+        .disable_y_mesh()
+        .y_label_formatter(&label)
+        .x_desc(&f.value_axis)
+        .draw()?;
+    chart.draw_series(dashed((null, -0.6), (null, k as f64 - 0.4)))?;
+    for (i, t) in tests.iter().enumerate() {
+        let colour = if i == 0 { BLUE } else { GREY };
+        let e = &t.estimate;
+        let row = (k - 1 - i) as f64;
+        interval(
+            &mut chart,
+            row,
+            e.value,
+            (e.ci_low, e.ci_high),
+            (lo, hi),
+            colour,
+        )?;
+    }
     Ok(())
 }
 
@@ -319,40 +489,51 @@ fn pairs(area: &Area, h: &HypothesisResult, f: &FigureView) -> DrawResult {
         .collect();
     let (lo, hi) = span(pts.iter().flat_map(|p| [p[0], p[1]]));
     let labels = &f.categories;
+    // Room on the right for the legend of the two line colours.
+    let x = Axis {
+        lo: -0.3,
+        hi: 2.4,
+        ticks: vec![0.0, 1.0],
+        decimals: 0,
+    };
     let mut chart = ChartBuilder::on(area)
         .margin(12)
-        .x_label_area_size(28)
-        .y_label_area_size(56)
-        .build_cartesian_2d(-0.3f64..1.3f64, lo..hi)?;
-    chart
-        .configure_mesh()
+        .x_label_area_size(52)
+        .y_label_area_size(72)
+        .build_cartesian_2d(x, Axis::nice(lo, hi, 6))?;
+    styled_mesh!(chart)
         .disable_x_mesh()
-        .x_labels(2)
-        .x_label_formatter(&|x| {
-            if x.abs() < 1e-6 {
-                labels.first().cloned().unwrap_or_default()
-            } else if (x - 1.0).abs() < 1e-6 {
-                labels.get(1).cloned().unwrap_or_default()
-            } else {
-                String::new()
-            }
-        })
+        .x_label_formatter(&|x| category_label(labels, *x))
+        .x_desc(&f.other_axis)
         .y_desc(&f.value_axis)
-        .light_line_style(WHITE)
         .draw()?;
-    chart.draw_series(pts.iter().map(|p| {
-        let colour = if p[1] > p[0] { ORANGE } else { BLUE };
-        PathElement::new(
-            vec![(0.0, p[0]), (1.0, p[1])],
-            colour.mix(0.6).stroke_width(1),
-        )
-    }))?;
+    let legend = f.legend.clone();
+    for (colour, rose, words) in [(ORANGE, true, legend.first()), (BLUE, false, legend.get(1))] {
+        let anno = chart.draw_series(pts.iter().filter(|p| (p[1] > p[0]) == rose).map(|p| {
+            PathElement::new(
+                vec![(0.0, p[0]), (1.0, p[1])],
+                colour.mix(0.6).stroke_width(1),
+            )
+        }))?;
+        if let Some(w) = words {
+            anno.label(w.clone()).legend(move |(x, y)| {
+                PathElement::new(vec![(x, y), (x + 18, y)], colour.stroke_width(2))
+            });
+        }
+    }
     chart.draw_series(pts.iter().flat_map(|p| {
         [
             Circle::new((0.0, p[0]), 2, GREY.filled()),
             Circle::new((1.0, p[1]), 2, GREY.filled()),
         ]
     }))?;
+    chart
+        .configure_series_labels()
+        .label_font(tick_font())
+        .position(SeriesLabelPosition::UpperRight)
+        .background_style(WHITE)
+        .border_style(GREY)
+        .draw()?;
     Ok(())
 }
 
@@ -364,24 +545,30 @@ fn histogram(area: &Area, d: &PlotData, f: &FigureView) -> DrawResult {
     } else {
         span(finite(&d.points).into_iter().chain([0.0]))
     };
-    let top = d.bin_counts.iter().copied().max().unwrap_or(1).max(1) as f64 * 1.1;
+    let most = d.bin_counts.iter().copied().max().unwrap_or(1);
+    let y = Axis::counts(most, 5);
+    let top = y.hi;
     let mut chart = ChartBuilder::on(area)
         .margin(12)
-        .x_label_area_size(34)
-        .y_label_area_size(44)
-        .build_cartesian_2d(lo..hi, 0f64..top)?;
-    chart
-        .configure_mesh()
+        .x_label_area_size(52)
+        .y_label_area_size(64)
+        .build_cartesian_2d(Axis::nice(lo, hi, 7), y)?;
+    styled_mesh!(chart)
         .disable_x_mesh()
         .x_desc(&f.value_axis)
         .y_desc(&f.other_axis)
-        .light_line_style(WHITE)
         .draw()?;
     if valid {
         chart.draw_series(d.bin_counts.iter().enumerate().map(|(i, &c)| {
             Rectangle::new(
                 [(edges[i], 0.0), (edges[i + 1], c as f64)],
                 BLUE.mix(0.6).filled(),
+            )
+        }))?;
+        chart.draw_series(d.bin_counts.iter().enumerate().map(|(i, &c)| {
+            Rectangle::new(
+                [(edges[i], 0.0), (edges[i + 1], c as f64)],
+                WHITE.stroke_width(1),
             )
         }))?;
     }

@@ -149,6 +149,9 @@ pub(crate) fn markdown_to_latex(md: &str) -> String {
             Event::End(TagEnd::Emphasis) | Event::End(TagEnd::Strong) => s.push('}'),
             Event::Text(t) | Event::Code(t) => s.push_str(&latex_escape(&t)),
             Event::SoftBreak | Event::HardBreak => s.push(' '),
+            // The one piece of HTML the view writes: a subscript.
+            Event::InlineHtml(t) if &*t == "<sub>" => s.push_str("\\textsubscript{"),
+            Event::InlineHtml(t) if &*t == "</sub>" => s.push('}'),
             Event::Html(t) | Event::InlineHtml(t) => s.push_str(&latex_escape(&t)),
             _ => {}
         }
@@ -189,14 +192,27 @@ pub(crate) fn from_results(r: &Results) -> Result<Values> {
         add("Stat", bare_statistic(h))?;
         add("P", sentence::p_of(h, correction))?;
         add("Effect", sentence::effect(&h.effect, conf))?;
-        add("Diff", sentence::estimate(&h.estimate, h.units.as_deref()))?;
-        add("Sentence", sentence::one_sentence(h, correction))?;
+        add(
+            "Diff",
+            sentence::estimate(
+                &h.estimate,
+                h.units.as_deref(),
+                super::view::apa::measured(h.recorded_decimals),
+            ),
+        )?;
+        // Macro names keep the data's spelling; the words use the plan's
+        // display names, as the report does.
+        add(
+            "Sentence",
+            sentence::one_sentence(&super::view::displayed(r, h), correction),
+        )?;
         if let Some(eq) = &h.equivalence {
             add(
                 "Equivalence",
                 format!("{} = {}", apa::sym("p"), apa::p_number(eq.p)),
             )?;
         }
+        let digits = apa::measured(h.recorded_decimals);
         for g in &h.groups {
             add(
                 &format!("N {}", g.label),
@@ -204,12 +220,16 @@ pub(crate) fn from_results(r: &Results) -> Result<Values> {
             )?;
             add(
                 &format!("Mean {}", g.label),
-                format!("{} = {}", apa::sym("M"), apa::two(g.describe.mean)),
+                format!(
+                    "{} = {}",
+                    apa::sym("M"),
+                    apa::fixed(g.describe.mean, digits)
+                ),
             )?;
             if let Some(sd) = g.describe.sd {
                 add(
                     &format!("SD {}", g.label),
-                    format!("{} = {}", apa::sym("SD"), apa::two(sd)),
+                    format!("{} = {}", apa::sym("SD"), apa::fixed(sd, digits)),
                 )?;
             }
         }
@@ -246,6 +266,9 @@ pub(crate) fn plain(markdown: &str) -> String {
     let mut s = String::new();
     for ev in Parser::new(markdown) {
         match ev {
+            // A subscript in plain text is written after an underscore: d_z.
+            Event::InlineHtml(t) if &*t == "<sub>" => s.push('_'),
+            Event::InlineHtml(t) if &*t == "</sub>" => {}
             Event::Text(t) | Event::Code(t) | Event::Html(t) | Event::InlineHtml(t) => {
                 s.push_str(&t)
             }
@@ -279,6 +302,17 @@ mod tests {
             .add(name("a", "H-1", "t"), "H-1 t".into(), "y".into())
             .unwrap_err();
         assert_eq!(e.what, "two values would be named \\AHOneT: H1 t and H-1 t");
+    }
+
+    #[test]
+    fn subscripts_become_latex_and_plain_text() {
+        // APA Publication Manual, 7th ed., §6.44: d with the subscript z, the
+        // subscript upright (an identifier, not a statistic).
+        assert_eq!(
+            markdown_to_latex("*d*<sub>z</sub> = 0.41"),
+            "\\textit{d}\\textsubscript{z} = 0.41"
+        );
+        assert_eq!(plain("*d*<sub>z</sub> = 0.41"), "d_z = 0.41");
     }
 
     #[test]

@@ -2,6 +2,11 @@
 # Opens a rendered report.html in headless Chromium and fails if any inline
 # <svg> has zero width or height; also saves a screenshot next to it.
 #
+# Then it lays the page out as it prints: the body narrowed to the text
+# block of a single-column A4 page with 2.5 cm margins (16 cm, the width the
+# figures are designed for), and fails if a figure is wider than that block
+# or any text inside a figure renders smaller than 8 pt (MIN_PT).
+#
 # Usage: tests/browser/check_svgs.sh path/to/report.html [screenshot.png]
 #
 # The report itself contains no scripts. A temporary copy gets one small
@@ -37,6 +42,27 @@ cat >>"$copy" <<'JS'
     var t = svgs[i].querySelector("title");
     out.push((t ? t.textContent : "svg " + i) + "\t" + r.width + "\t" + r.height);
   }
+  // The printed layout: the text block of an A4 page with 2.5 cm margins.
+  document.body.style.maxWidth = "16cm";
+  document.body.style.padding = "0";
+  document.body.style.margin = "0";
+  var block = document.body.clientWidth;
+  for (var j = 0; j < svgs.length; j++) {
+    var s = svgs[j];
+    var rect = s.getBoundingClientRect();
+    var vb = s.viewBox && s.viewBox.baseVal;
+    var scale = vb && vb.width ? rect.width / vb.width : 1;
+    var smallest = Infinity;
+    var texts = s.querySelectorAll("text");
+    for (var k = 0; k < texts.length; k++) {
+      if (!texts[k].textContent.trim()) continue;
+      var size = parseFloat(window.getComputedStyle(texts[k]).fontSize);
+      // CSS pixels are 1/96 in, points 1/72 in.
+      smallest = Math.min(smallest, size * scale * 0.75);
+    }
+    var tt = s.querySelector("title");
+    out.push("print\t" + (tt ? tt.textContent : "svg " + j) + "\t" + rect.width + "\t" + block + "\t" + smallest);
+  }
   var pre = document.createElement("pre");
   pre.id = "svg-measurements";
     // The markers are assembled at run time so that the script's own source,
@@ -61,8 +87,26 @@ if [[ -z "$block" ]]; then
 fi
 count="$(printf '%s\n' "$block" | head -n 1)"
 bad=0
-while IFS=$'\t' read -r name width height; do
-    [[ -z "${name:-}" ]] && continue
+MIN_PT=8
+while IFS=$'\t' read -r -a f; do
+    [[ ${#f[@]} -eq 0 || -z "${f[0]}" ]] && continue
+    if [[ "${f[0]}" == "print" ]]; then
+        # print, figure, its width, the text block's width, smallest text (pt)
+        if awk -v w="${f[2]}" -v b="${f[3]}" 'BEGIN { exit !(w <= b + 0.5) }'; then
+            echo "ok: ${f[1]} fits the 16 cm text block (${f[2]} <= ${f[3]} px)"
+        else
+            echo "FAIL: ${f[1]} is ${f[2]} px wide, wider than the text block (${f[3]} px)"
+            bad=1
+        fi
+        if awk -v p="${f[4]}" -v m="$MIN_PT" 'BEGIN { exit !(p >= m) }'; then
+            echo "ok: ${f[1]} smallest text ${f[4]} pt >= ${MIN_PT} pt"
+        else
+            echo "FAIL: ${f[1]} has text of ${f[4]} pt, below ${MIN_PT} pt"
+            bad=1
+        fi
+        continue
+    fi
+    name="${f[0]}" width="${f[1]:-0}" height="${f[2]:-0}"
     if awk -v w="$width" -v h="$height" 'BEGIN { exit !(w > 0 && h > 0) }'; then
         echo "ok: $name (${width} x ${height})"
     else

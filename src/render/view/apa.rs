@@ -1,8 +1,19 @@
 //! Numbers as APA style writes them: pure functions from numbers to text.
 //!
-//! Each rule follows the APA Publication Manual, 7th ed. (sections 6.36
-//! "Decimal places", 6.40–6.46 on statistics in text, 6.44 on symbols;
-//! section numbers from memory).
+//! Each rule follows the APA Publication Manual, 7th ed. (American
+//! Psychological Association, 2020): §6.36 on decimals and the leading
+//! zero, §§6.40–6.46 on statistics in text, §6.44 on symbols (italic
+//! symbols, upright subscripts that only identify). Rules checked against
+//! the APA Style blog ("A post about nothing", 2010, on leading zeros;
+//! "Formatting statistics: using brackets", 2010, on intervals and their
+//! stated level) and university summaries of the 7th edition; section
+//! numbers as those summaries give them.
+//!
+//! **One-sided intervals** are written with the open side as infinity and
+//! a round bracket, since infinity is never included, and always with the
+//! level: `95% CI [15.87, ∞)` for "greater", `95% CI (−∞, −2.10]` for
+//! "less". The same form appears in every output (tables, sentences,
+//! figure notes, the terminal); the level is never left to a header.
 //! Output is Markdown: statistical symbols are wrapped in `*…*` so they
 //! render in italics. Negative numbers use the true minus sign (U+2212) in
 //! every output, Markdown and HTML alike, so the two never disagree.
@@ -45,6 +56,34 @@ pub(crate) fn bounded(x: f64, decimals: usize) -> String {
         format!(".{rest}")
     } else if let Some(rest) = s.strip_prefix(&format!("{MINUS}0.")) {
         format!("{MINUS}.{rest}")
+    } else {
+        s
+    }
+}
+
+/// Decimals of descriptives and differences: one more than the outcome
+/// was recorded with (APA Publication Manual, 7th ed., §6.36: as many
+/// decimals as the measurement's precision supports; the one extra is
+/// common practice), two when the resolution is unknown, at most six.
+pub(crate) fn measured(recorded: Option<u32>) -> usize {
+    recorded.map_or(2, |d| (d as usize + 1).min(6))
+}
+
+/// Decimals of recorded values themselves (the range): as recorded, two
+/// when unknown.
+pub(crate) fn as_recorded(recorded: Option<u32>) -> usize {
+    recorded.map_or(2, |d| d as usize)
+}
+
+/// A number the plan states (a reference value, a bound): as the plan
+/// wrote it, shortest form, with the true minus sign ("15", not "15.00").
+pub(crate) fn stated(x: f64) -> String {
+    if !x.is_finite() {
+        return fixed(x, 0);
+    }
+    let s = format!("{}", x.abs());
+    if x < 0.0 {
+        format!("{MINUS}{s}")
     } else {
         s
     }
@@ -105,6 +144,15 @@ pub(crate) fn sym(symbol: &str) -> String {
     format!("*{symbol}*")
 }
 
+/// A statistical symbol with a subscript that is not itself a statistic,
+/// set upright below the line: `*d*<sub>z</sub>`. The `<sub>` tags are the
+/// one piece of HTML the reports write in Markdown (user text cannot carry
+/// them: its `<` is escaped), and the HTML conversion lets exactly these
+/// through.
+pub(crate) fn sym_sub(symbol: &str, sub: &str) -> String {
+    format!("*{symbol}*<sub>{sub}</sub>")
+}
+
 /// A confidence level as a percentage: 0.95 → "95%", 0.975 → "97.5%".
 pub(crate) fn level(confidence: f64) -> String {
     let pct = confidence * 100.0;
@@ -159,8 +207,11 @@ pub(crate) fn rank_statistic(x: f64) -> String {
 mod tests {
     use super::*;
 
-    // Source for every test here: APA Publication Manual, 7th ed. (section
-    // numbers from memory).
+    // Source for every test here: APA Publication Manual, 7th ed. (2020),
+    // the section named beside each; the rules were checked against the APA
+    // Style blog ("A post about nothing", 2010; "Formatting statistics:
+    // using brackets", 2010) and university summaries of the 7th edition,
+    // which give the section numbers.
 
     #[test]
     fn most_figures_take_two_decimals() {

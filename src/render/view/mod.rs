@@ -16,7 +16,7 @@ pub(crate) mod provenance;
 pub(crate) mod sentence;
 
 use self::apa::{sym, two};
-use self::sentence::method_name;
+use self::sentence::{method_name, method_plain};
 use super::markdown::escape;
 use crate::results::{
     Branch, Decision, Design, HypothesisResult, LockState, Results, SpreadMethod,
@@ -30,16 +30,49 @@ pub(crate) fn md(s: impl Into<String>) -> Value {
     Value::from_safe_string(s.into())
 }
 
-/// One row of the "At a glance" table, as cells.
-#[derive(Serialize)]
-pub(crate) struct GlanceRow {
-    id: String,
-    claim: String,
-    method: Value,
-    difference: Value,
-    effect: Value,
-    p: Value,
-    verdict: String,
+/// A numbered table as APA style sets it (Publication Manual, 7th ed.,
+/// §§7.8–7.21): the number in bold, the title in italic title case on the
+/// line below, a header row, the body, and a note where one is needed.
+/// The view decides every cell and the order of the columns once; each
+/// format supplies only its own table syntax.
+#[derive(Clone, Debug, Serialize)]
+pub(crate) struct TableView {
+    /// Table number in the report (tables and figures are numbered apart).
+    pub number: usize,
+    /// The title, in title case (plain text; templates escape it).
+    pub title: String,
+    /// Header cells (Markdown: symbols such as *n*, *SD* and *p* italic).
+    pub header: Vec<Value>,
+    /// Body rows, one list of cells (Markdown) per row.
+    pub rows: Vec<Vec<Value>>,
+    /// The table note, without the leading "Note." (Markdown).
+    pub note: Option<Value>,
+}
+
+impl TableView {
+    fn new(title: String, header: Vec<Value>, rows: Vec<Vec<Value>>) -> TableView {
+        TableView {
+            number: 0,
+            title,
+            header,
+            rows,
+            note: None,
+        }
+    }
+}
+
+/// A table of plan or lock text, escaped; none when it has no rows.
+fn text_table<'a>(
+    title: &str,
+    header: [&str; 3],
+    rows: impl Iterator<Item = [&'a String; 3]>,
+) -> Option<TableView> {
+    let rows: Vec<Vec<Value>> = rows.map(|r| r.map(|t| md(escape(t))).to_vec()).collect();
+    (!rows.is_empty()).then(|| TableView::new(title.into(), cells(header), rows))
+}
+
+fn cells<'a>(words: impl IntoIterator<Item = &'a str>) -> Vec<Value> {
+    words.into_iter().map(md).collect()
 }
 
 /// Everything said about one hypothesis.
@@ -47,21 +80,21 @@ pub(crate) struct GlanceRow {
 pub(crate) struct HypothesisView {
     id: String,
     claim: String,
-    /// The descriptives table: one list of cells per set.
-    descriptives: Vec<Vec<Value>>,
+    /// The descriptives table.
+    descriptives: TableView,
     checks: Vec<Value>,
     rule: Value,
     test: Vec<Value>,
     size: Vec<Value>,
     planning: Option<Value>,
     sentence: Value,
-    /// The robustness table: one list of cells per method.
-    robustness: Vec<Vec<Value>>,
+    /// Other methods, not preregistered: one sentence per method (the
+    /// figure with every method's interval is `figures.methods`).
+    robustness: Vec<Value>,
     /// The figures, by where the report places them.
     figures: BTreeMap<FigureRole, FigureView>,
-    /// The rows-in-rows-out table: one list of cells per step.
-    rows: Vec<Vec<Value>>,
-    row_groups: [String; 2],
+    /// The rows-in-rows-out table.
+    rows: TableView,
 }
 
 /// Where a figure sits in the report, and which drawing it is.
@@ -78,6 +111,8 @@ pub(crate) enum FigureRole {
     Differences,
     /// The estimate and its interval.
     Difference,
+    /// Every method's estimate and interval on one axis.
+    Methods,
 }
 
 impl FigureRole {
@@ -89,6 +124,7 @@ impl FigureRole {
             FigureRole::Qq => "qq",
             FigureRole::Differences => "differences",
             FigureRole::Difference => "difference",
+            FigureRole::Methods => "methods",
         }
     }
 }
@@ -123,9 +159,13 @@ pub(crate) struct FigureView {
     /// Q–Q plot, the counts of a histogram (plain text).
     #[serde(skip)]
     pub other_axis: String,
-    /// Labels of the categories or panels drawn, in order (plain text).
+    /// Labels of the categories, panels or rows drawn, in order (plain text).
     #[serde(skip)]
     pub categories: Vec<String>,
+    /// Words of the legend, one per colour that needs one (plain text;
+    /// the note says the same).
+    #[serde(skip)]
+    pub legend: Vec<String>,
 }
 
 /// The whole report, worded.
@@ -133,11 +173,10 @@ pub(crate) struct FigureView {
 pub(crate) struct ReportView {
     title: String,
     status: Value,
-    changes: Vec<Vec<String>>,
-    deviations: Vec<Vec<String>>,
+    changes: Option<TableView>,
+    deviations: Option<TableView>,
     lock_state: LockState,
-    p_header: Value,
-    glance: Vec<GlanceRow>,
+    glance: TableView,
     hypotheses: Vec<HypothesisView>,
     data_notes: Vec<Value>,
     provenance: Vec<Value>,
@@ -145,6 +184,11 @@ pub(crate) struct ReportView {
     /// Every figure, in report order.
     #[serde(skip)]
     pub figures: Vec<FigureView>,
+    /// Every table, numbered, in report order (the same tables the fields
+    /// above place), for renderers that set tables outside a template.
+    #[serde(skip)]
+    #[allow(dead_code)]
+    pub tables: Vec<TableView>,
     /// Provenance as machine-readable `<meta>` tags of the HTML report.
     #[serde(skip)]
     pub meta: Vec<(&'static str, String)>,
@@ -155,44 +199,91 @@ pub(crate) fn report(r: &Results) -> ReportView {
     let mut all_figures: Vec<FigureView> = Vec::new();
     let mut hyps = Vec::new();
     let mut used_stems = Vec::new();
-    for (i, h) in r.hypotheses.iter().enumerate() {
+    let shown: Vec<HypothesisResult> = r.hypotheses.iter().map(|h| displayed(r, h)).collect();
+    for (i, h) in shown.iter().enumerate() {
         let stem = stem(&h.id, i, &used_stems);
         used_stems.push(stem.clone());
         let mut fctx = BTreeMap::new();
-        for mut f in figures(h, i, &stem) {
+        let planned = r.plan.hypotheses.iter().find(|p| p.id == h.id);
+        for mut f in figures(h, planned, i, &stem) {
             f.number = all_figures.len() + 1;
             fctx.insert(f.role, f.clone());
             all_figures.push(f);
         }
         hyps.push(hypothesis(r, h, fctx));
     }
-    let p_header = match sentence::correction_name(r.correction_applied) {
-        Some(c) => format!("p ({c})"),
-        None => "p".into(),
+    // Tables are numbered in the order the report shows them.
+    let mut tables = Vec::new();
+    let mut number = |t: &mut TableView| {
+        t.number = tables.len() + 1;
+        tables.push(t.clone());
     };
+    let mut changes = text_table(
+        "Changes Since the Lock",
+        ["Field", "Locked value", "Current value"],
+        r.changes.iter().map(|c| [&c.field, &c.locked, &c.current]),
+    );
+    let mut deviations = text_table(
+        "Deviations Declared in the Analysis File",
+        ["Date", "What changed", "Why"],
+        r.deviations.iter().map(|d| [&d.date, &d.change, &d.reason]),
+    );
+    for t in changes.iter_mut().chain(deviations.iter_mut()) {
+        number(t);
+    }
+    let mut glance = glance_table(r, &shown);
+    number(&mut glance);
+    for h in hyps.iter_mut() {
+        number(&mut h.descriptives);
+    }
+    for h in hyps.iter_mut() {
+        number(&mut h.rows);
+    }
     ReportView {
         title: r.plan.title.clone(),
         status: md(status(r)),
-        changes: r
-            .changes
-            .iter()
-            .map(|c| vec![c.field.clone(), c.locked.clone(), c.current.clone()])
-            .collect(),
-        deviations: r
-            .deviations
-            .iter()
-            .map(|d| vec![d.date.clone(), d.change.clone(), d.reason.clone()])
-            .collect(),
+        changes,
+        deviations,
         lock_state: r.lock,
-        p_header: md(p_header),
-        glance: r.hypotheses.iter().map(|h| glance(r, h)).collect(),
+        glance,
         hypotheses: hyps,
         data_notes: data_notes(r).into_iter().map(md).collect(),
         provenance: provenance(r),
         command: md(code_block(&r.command)),
         figures: all_figures,
+        tables,
         meta: provenance_meta(r),
     }
+}
+
+/// A hypothesis as the reports show it: every group, condition or column
+/// under the name the plan's `names` gives it (results.json keeps the
+/// data's own spelling).
+pub(crate) fn displayed(r: &Results, h: &HypothesisResult) -> HypothesisResult {
+    let mut h = h.clone();
+    let Some(names) = r
+        .plan
+        .hypotheses
+        .iter()
+        .find(|p| p.id == h.id)
+        .map(|p| &p.names)
+        .filter(|n| !n.is_empty())
+    else {
+        return h;
+    };
+    let rename = |label: &mut String| {
+        if let Some(words) = names.get(label.as_str()) {
+            *label = words.clone();
+        }
+    };
+    h.labels.iter_mut().for_each(rename);
+    h.groups.iter_mut().for_each(|g| rename(&mut g.label));
+    h.checks
+        .normality
+        .iter_mut()
+        .for_each(|n| rename(&mut n.label));
+    h.plot.iter_mut().for_each(|p| rename(&mut p.label));
+    h
 }
 
 /// A file-name stem for a hypothesis id: lowercase letters, digits and
@@ -285,48 +376,75 @@ fn units(h: &HypothesisResult) -> String {
         .unwrap_or_default()
 }
 
-/// An estimate in a table cell: the value with its units and bounds for
-/// a difference; a probability of superiority is named, since it is not
-/// a difference.
+/// An estimate in a table cell, with its level: the value with its units
+/// for a difference (to the data's resolution); a probability of
+/// superiority is named, since it is not a difference.
 fn estimate_cell(e: &crate::results::Estimate, h: &HypothesisResult) -> String {
-    let fmt = sentence::estimate_number(e.name);
+    let f = sentence::estimate_number(e.name, apa::measured(h.recorded_decimals));
+    let ci = apa::ci(e.confidence, e.ci_low, e.ci_high, f);
     if e.name.in_outcome_units() {
-        format!(
-            "{}{} {}",
-            fmt(e.value),
-            units(h),
-            apa::bounds(e.ci_low, e.ci_high, fmt)
-        )
+        format!("{}{}, {ci}", f(e.value), units(h))
     } else {
-        format!(
-            "{} {} {}",
-            sentence::estimate_name(e.name),
-            fmt(e.value),
-            apa::bounds(e.ci_low, e.ci_high, fmt)
-        )
+        format!("{} {}, {ci}", sentence::estimate_name(e.name), f(e.value))
     }
 }
 
-fn glance(r: &Results, h: &HypothesisResult) -> GlanceRow {
-    let e = &h.estimate;
-    let fx = &h.effect;
-    let p = match r.correction_applied {
-        crate::results::Correction::None => h.p,
-        _ => h.p_adjusted,
+/// The tests drawn on the common axis of "Does the conclusion depend on
+/// the method?": the preregistered test first, then each robustness check
+/// whose estimate is on the same scale (a difference in the outcome's
+/// units, or a probability of superiority). The figure and its labels
+/// both come from this list.
+pub(crate) fn methods_drawn(h: &HypothesisResult) -> Vec<&crate::results::TestResult> {
+    let scale = h.test.estimate.name.in_outcome_units();
+    std::iter::once(&h.test)
+        .chain(
+            h.robustness
+                .iter()
+                .filter(|t| t.estimate.name.in_outcome_units() == scale),
+        )
+        .collect()
+}
+
+/// "At a glance": one row per hypothesis; every interval with its level.
+fn glance_table(r: &Results, shown: &[HypothesisResult]) -> TableView {
+    let p_header = match sentence::correction_name(r.correction_applied) {
+        Some(c) => format!("{} ({c})", sym("p")),
+        None => sym("p"),
     };
-    let p = match &h.equivalence {
-        Some(eq) => format!("{} (equivalence)", apa::p_number(eq.p)),
-        None => apa::p_number(p),
-    };
-    GlanceRow {
-        id: h.id.clone(),
-        claim: h.claim.clone(),
-        method: md(method_name(h.method)),
-        difference: md(estimate_cell(e, h)),
-        effect: md(sentence::effect_with_bounds(fx)),
-        p: md(p),
-        verdict: verdict(h).into(),
-    }
+    let rows = shown
+        .iter()
+        .map(|h| {
+            let e = &h.estimate;
+            let p = match r.correction_applied {
+                crate::results::Correction::None => h.p,
+                _ => h.p_adjusted,
+            };
+            let p = match &h.equivalence {
+                Some(eq) => format!("{} (equivalence)", apa::p_number(eq.p)),
+                None => apa::p_number(p),
+            };
+            vec![
+                md(format!("{}: {}", escape(&h.id), escape(&h.claim))),
+                md(method_name(h.method)),
+                md(estimate_cell(e, h)),
+                md(sentence::effect(&h.effect, e.confidence)),
+                md(p),
+                md(verdict(h)),
+            ]
+        })
+        .collect();
+    TableView::new(
+        "At a Glance".into(),
+        vec![
+            md("Claim"),
+            md("Method used"),
+            md("Difference"),
+            md("Effect"),
+            md(p_header),
+            md("Verdict"),
+        ],
+        rows,
+    )
 }
 
 fn hypothesis(
@@ -334,7 +452,10 @@ fn hypothesis(
     h: &HypothesisResult,
     figures: BTreeMap<FigureRole, FigureView>,
 ) -> HypothesisView {
-    let descriptives = h
+    let digits = apa::measured(h.recorded_decimals);
+    let f = |x| apa::fixed(x, digits);
+    let raw = |x| apa::fixed(x, apa::as_recorded(h.recorded_decimals));
+    let body = h
         .groups
         .iter()
         .map(|g| {
@@ -342,30 +463,41 @@ fn hypothesis(
             vec![
                 md(escape(&g.label)),
                 md(d.n.to_string()),
-                md(two(d.mean)),
-                md(d.sd.map(two).unwrap_or_else(|| "—".into())),
-                md(two(d.median)),
-                md(format!("{} to {}", two(d.q1), two(d.q3))),
-                md(format!("{} to {}", two(d.min), two(d.max))),
+                md(f(d.mean)),
+                md(d.sd.map(f).unwrap_or_else(|| "—".into())),
+                md(f(d.median)),
+                md(format!("{} to {}", f(d.q1), f(d.q3))),
+                md(format!("{} to {}", raw(d.min), raw(d.max))),
             ]
         })
         .collect();
-    let robustness = h
-        .robustness
-        .iter()
-        .map(|t| {
-            vec![
-                md(method_name(t.method)),
-                md(sentence::statistic(t)),
-                md(apa::p_number(t.p)),
-                md(estimate_cell(&t.estimate, h)),
-                md(t.effects
-                    .first()
-                    .map(|e| sentence::effect(e, t.estimate.confidence))
-                    .unwrap_or_else(|| "—".into())),
-            ]
-        })
-        .collect();
+    let mut descriptives = TableView::new(
+        format!("What the Data Look Like in {}", h.id),
+        vec![
+            md(""),
+            md(sym("n")),
+            md(sym("M")),
+            md(sym("SD")),
+            md(sym("Mdn")),
+            md("Quartiles"),
+            md("Range"),
+        ],
+        body,
+    );
+    descriptives.note = Some(md(match h.recorded_decimals {
+        Some(d) => format!(
+            "{} = mean; {} = median. Values were recorded to {}; means, SDs, medians and quartiles are given to one decimal more, the range as recorded.",
+            sym("M"),
+            sym("Mdn"),
+            match d {
+                0 => "whole numbers".to_string(),
+                1 => "one decimal".to_string(),
+                d => format!("{d} decimals"),
+            }
+        ),
+        None => format!("{} = mean; {} = median.", sym("M"), sym("Mdn")),
+    }));
+    let robustness = robustness_sentences(r, h);
     HypothesisView {
         id: h.id.clone(),
         claim: h.claim.clone(),
@@ -381,9 +513,45 @@ fn hypothesis(
         sentence: md(sentence::one_sentence(h, r.correction_applied)),
         robustness,
         figures,
-        rows: rows(h),
-        row_groups: set_labels(h),
+        rows: rows_table(h),
     }
+}
+
+/// One sentence per method that was not preregistered, each ending with
+/// whether it reaches the preregistered test's conclusion at the plan's α.
+fn robustness_sentences(r: &Results, h: &HypothesisResult) -> Vec<Value> {
+    let digits = apa::measured(h.recorded_decimals);
+    let alpha = apa::bounded(r.plan.alpha, 2);
+    let sided = apa::sidedness(h.alternative != crate::stats::Alternative::TwoSided)
+        .map(|s| format!(", {s}"))
+        .unwrap_or_default();
+    h.robustness
+        .iter()
+        .map(|t| {
+            // The same classification the preregistered test's verdict
+            // uses (its p is already for the plan's sidedness).
+            let agrees = Decision::at(t.p, r.plan.alpha) == Decision::at(h.test.p, r.plan.alpha);
+            let reading = if h.equivalence.is_some() {
+                "it tests for a difference, not for equivalence, so it does not bear on the verdict"
+                    .to_string()
+            } else if agrees {
+                format!("at α = {alpha} it reaches the same conclusion as the preregistered test")
+            } else {
+                format!("at α = {alpha} it does not reach the preregistered test's conclusion")
+            };
+            let mut s = format!(
+                "{}: {}, {}{sided}; {}",
+                capital(&method_name(t.method)),
+                sentence::statistic(t),
+                apa::p_clause(t.p),
+                sentence::estimate(&t.estimate, h.units.as_deref(), digits),
+            );
+            if let Some(e) = t.effects.first() {
+                s.push_str(&format!("; {}", sentence::effect(e, t.estimate.confidence)));
+            }
+            md(format!("{s}; {reading}."))
+        })
+        .collect()
 }
 
 fn checks(h: &HypothesisResult) -> Vec<Value> {
@@ -399,7 +567,9 @@ fn checks(h: &HypothesisResult) -> Vec<Value> {
                     escape(&n.label),
                     n.n,
                     sym("W"),
-                    apa::bounded(w, 2),
+                    // Three decimals: W sits close to 1, where two
+                    // decimals would show most samples alike.
+                    apa::bounded(w, 3),
                     apa::p_clause(p)
                 ),
                 (_, _, Some(why)) => format!("{}: not run ({})", escape(&n.label), escape(why)),
@@ -508,12 +678,18 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
         )));
     }
     if let Some(eq) = &h.equivalence {
-        let fmt = sentence::estimate_number(eq.on);
+        let bound = |x: f64| {
+            if eq.on.in_outcome_units() {
+                apa::stated(x)
+            } else {
+                apa::bounded(x, 2)
+            }
+        };
         out.push(md(format!(
             "Equivalence on the {} (bounds {} to {}{}), {}; the equivalence {} is the larger of the two, {}.",
             sentence::estimate_name(eq.on),
-            fmt(eq.low),
-            fmt(eq.high),
+            bound(eq.low),
+            bound(eq.high),
             if eq.on.in_outcome_units() { units(h) } else { String::new() },
             sentence::equivalence_tests(h, eq, true),
             sym("p"),
@@ -529,9 +705,11 @@ fn test_lines(r: &Results, h: &HypothesisResult) -> Vec<Value> {
 }
 
 fn size_lines(h: &HypothesisResult) -> Vec<Value> {
+    let digits = apa::measured(h.recorded_decimals);
     let mut out = vec![md(capital(&sentence::estimate(
         &h.estimate,
         h.units.as_deref(),
+        digits,
     )))];
     for e in &h.test.effects {
         out.push(md(capital(&sentence::effect(e, h.estimate.confidence))));
@@ -542,15 +720,14 @@ fn size_lines(h: &HypothesisResult) -> Vec<Value> {
             other => sentence::estimate_name(other),
         };
         out.push(md(format!(
-            "For equivalence: {} of the {what} {}.",
+            "For equivalence: {} CI of the {what} {} (the 1 − 2α interval the two one-sided tests rest on).",
             apa::level(eq.ci_level),
             apa::bounds(
                 Some(eq.ci_low),
                 Some(eq.ci_high),
-                sentence::estimate_number(eq.on)
+                sentence::estimate_number(eq.on, digits)
             )
-        )
-        .replace("% of", "% CI of")));
+        )));
     }
     out
 }
@@ -562,6 +739,15 @@ fn capital(s: &str) -> String {
         Some(f) => f.to_uppercase().chain(c).collect(),
         None => String::new(),
     }
+}
+
+fn rows_table(h: &HypothesisResult) -> TableView {
+    let [a, b] = set_labels(h);
+    TableView::new(
+        format!("Rows In, Rows Out in {}", h.id),
+        vec![md("Step"), md(escape(&a)), md(escape(&b))],
+        rows(h),
+    )
 }
 
 fn rows(h: &HypothesisResult) -> Vec<Vec<Value>> {
@@ -661,7 +847,7 @@ fn planning_paragraph(
     if let Some(d) = p.sensitivity {
         let sym = planning::effect_symbol(h.design);
         s.push_str(&format!(
-            " With the sample analysed, the smallest effect the t-test detects with {} power is {sym} = {}.",
+            " With the sample analysed, the smallest effect the *t* test detects with {} power is {sym} = {}.",
             apa::level(p.planned.power_target),
             apa::two(d.abs())
         ));
@@ -696,14 +882,21 @@ fn provenance_meta(r: &Results) -> Vec<(&'static str, String)> {
 /// one-sample design is its reference value.
 fn set_labels(h: &HypothesisResult) -> [String; 2] {
     match (h.design, h.reference) {
-        (Design::OneSample, Some(r)) => [h.labels[0].clone(), format!("reference {r}")],
+        (Design::OneSample, Some(r)) => {
+            [h.labels[0].clone(), format!("reference {}", apa::stated(r))]
+        }
         _ => h.labels.clone(),
     }
 }
 
 /// The figures of one hypothesis, in the order the report shows them,
 /// with every word drawn in them or said around them.
-fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
+fn figures(
+    h: &HypothesisResult,
+    planned: Option<&crate::plan::Hypothesis>,
+    index: usize,
+    stem: &str,
+) -> Vec<FigureView> {
     let mut out = Vec::new();
     let sampled =
         h.plot.iter().any(|p| p.sampled) || h.paired_plot.as_ref().is_some_and(|p| p.sampled);
@@ -720,6 +913,14 @@ fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
     let axis = format!("{}{unit}", h.outcome_label);
     let [a, b] = &set_labels(h);
     let set_labels: Vec<String> = h.plot.iter().map(|p| p.label.clone()).collect();
+    // The title of the axis along which the sets sit: the plan's grouping
+    // or condition column.
+    let sets_axis = match planned.map(|p| &p.comparison) {
+        Some(crate::plan::Comparison::Groups { group, .. }) => group.clone(),
+        Some(crate::plan::Comparison::PairedRows { condition, .. }) => condition.clone(),
+        Some(crate::plan::Comparison::PairedColumns { .. }) => "measurement".into(),
+        Some(crate::plan::Comparison::Reference { .. }) | None => "sample".into(),
+    };
     let figure = |role: FigureRole,
                   title: &str,
                   note: String,
@@ -739,27 +940,33 @@ fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
             value_axis,
             other_axis: other_axis.into(),
             categories,
+            legend: Vec::new(),
         }
     };
     match h.design {
         Design::Paired => {
             if let Some(pp) = &h.paired_plot {
                 let note = format!(
-                    "Each line joins one unit's value in {a} (left) to its value in {b} (right).{}",
+                    "Each line joins one unit's value in {a} (left) to its value in {b} (right); orange lines rise (higher in {b}), blue lines fall or stay level (lower in {b} or the same); grey dots are the values.{}",
                     if pp.sampled {
                         " The lines are a sample of all units."
                     } else {
                         ""
                     }
                 );
-                out.push(figure(
+                let mut f = figure(
                     FigureRole::Pairs,
-                    "Each unit, before and after",
+                    &format!("Each unit in {a} and in {b}"),
                     note,
                     axis.clone(),
-                    "",
+                    &sets_axis,
                     vec![a.clone(), b.clone()],
-                ));
+                );
+                f.legend = vec![
+                    format!("higher in {b}"),
+                    format!("lower in {b} or the same"),
+                ];
+                out.push(f);
             }
         }
         Design::Independent | Design::OneSample => {
@@ -767,15 +974,21 @@ fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
                 Design::OneSample => " The dashed line marks the reference value.",
                 _ => "",
             };
+            let colours = match h.design {
+                Design::Independent => {
+                    " The colours only tell the groups apart (blue: the first, orange: the second)."
+                }
+                _ => "",
+            };
             let note = format!(
-                "Each dot is one value, spread sideways only to avoid overlap. The box spans the quartiles with the median as a line; the whiskers reach the smallest and largest values.{reference}{sample_note}"
+                "Each dot is one value, spread sideways only to avoid overlap. The box spans the quartiles with the median as a line; the whiskers reach the smallest and largest values.{colours}{reference}{sample_note}"
             );
             out.push(figure(
                 FigureRole::Groups,
                 "Each group's values",
                 note,
                 axis.clone(),
-                "",
+                &sets_axis,
                 set_labels.clone(),
             ));
         }
@@ -784,29 +997,32 @@ fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
         let note = format!(
             "Sample values against the values a normal distribution would give at the same ranks; points near the line mean the shape is close to normal. The line runs through the quartiles.{sample_note}"
         );
-        let title = match h.design {
-            Design::Paired => "Normal Q–Q, the differences",
-            Design::Independent | Design::OneSample => "Normal Q–Q, each group",
+        let (title, values) = match h.design {
+            Design::Paired => (
+                "Normal Q–Q, the differences",
+                format!("difference in {}", sentence::mid_sentence(&axis)),
+            ),
+            Design::Independent | Design::OneSample => ("Normal Q–Q, each group", axis.clone()),
         };
         out.push(figure(
             FigureRole::Qq,
             title,
             note,
-            String::new(),
+            values,
             "normal quantile",
             set_labels,
         ));
     }
     if h.design == Design::Paired && !h.plot.is_empty() {
         let note = format!(
-            "How often each size of difference ({a} − {b}) occurred, over all analysed units; the dashed line marks zero."
+            "How often each size of difference ({a} − {b}) occurred, over all analysed units; the bin width follows the rule of Freedman and Diaconis (1981); the dashed line marks zero."
         );
         out.push(figure(
             FigureRole::Differences,
             "Each unit's difference",
             note,
-            format!("difference in {axis}"),
-            "units",
+            format!("difference in {}", sentence::mid_sentence(&axis)),
+            "number of units",
             Vec::new(),
         ));
     }
@@ -815,13 +1031,8 @@ fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
         crate::stats::Alternative::TwoSided => "",
         _ => " The interval is one-sided: its open side runs to the edge of the plot, marked by an arrow.",
     };
-    let eq = if h.equivalence.is_some() {
-        " Dotted lines mark the equivalence bounds."
-    } else {
-        ""
-    };
     let name = sentence::estimate_name(e.name);
-    let (null_words, axis) = if e.name.in_outcome_units() {
+    let (null_words, value_axis) = if e.name.in_outcome_units() {
         ("no difference", format!("{name}{unit}, {a} − {b}"))
     } else {
         (
@@ -829,17 +1040,78 @@ fn figures(h: &HypothesisResult, index: usize, stem: &str) -> Vec<FigureView> {
             format!("{name}, {a} over {b}"),
         )
     };
-    let note = format!(
-        "The {name} (dot) with its {:.0}% confidence interval (bar); the dashed line marks {null_words}.{open}{eq}",
-        e.confidence * 100.0
-    );
+    let note = match &h.equivalence {
+        Some(eq) => {
+            let (low, high, u) = if eq.on.in_outcome_units() {
+                (
+                    apa::stated(eq.low),
+                    apa::stated(eq.high),
+                    h.units.as_deref().map(|u| format!(" {u}")).unwrap_or_default(),
+                )
+            } else {
+                (apa::bounded(eq.low, 2), apa::bounded(eq.high, 2), String::new())
+            };
+            format!(
+                "The {name} (dot) with its {} confidence interval (bar), the 1 − 2α interval the equivalence verdict rests on; the dotted vermilion lines mark the equivalence bounds, {low} and {high}{u}; the dashed line marks {null_words}.",
+                apa::level(eq.ci_level),
+            )
+        }
+        None => format!(
+            "The {name} (dot) with its {} confidence interval (bar); the dashed line marks {null_words}.{open}",
+            apa::level(e.confidence)
+        ),
+    };
     out.push(figure(
         FigureRole::Difference,
         "The difference and its interval",
         note,
-        axis,
+        value_axis,
         "",
         Vec::new(),
     ));
+    let drawn = methods_drawn(h);
+    if drawn.len() > 1 {
+        let mut names = vec![format!("{} (preregistered)", method_plain(h.test.method))];
+        names.extend(drawn[1..].iter().map(|t| method_plain(t.method)));
+        // Methods whose estimate is on another scale (a probability of
+        // superiority beside differences, or the reverse) are left off
+        // the common axis and said so; their sentences stay below.
+        let left_off: Vec<String> = h
+            .robustness
+            .iter()
+            .filter(|t| !drawn.iter().any(|d| d.method == t.method))
+            .map(|t| method_plain(t.method))
+            .collect();
+        let left_off = if left_off.is_empty() {
+            String::new()
+        } else {
+            format!(
+                " Not drawn, since its estimate is on another scale: {}.",
+                left_off.join(", ")
+            )
+        };
+        let scale = if e.name.in_outcome_units() {
+            "Methods on means estimate the mean difference, trimmed means the trimmed mean difference and rank methods the Hodges–Lehmann shift, so the dots need not coincide; the dashed line marks no difference."
+        } else {
+            "Each estimates the probability of superiority; the dashed line marks ½."
+        };
+        let note = format!(
+            "Each row is one method: its estimate (dot) and {} confidence interval (bar){}; blue: the preregistered method; grey: the others, which were not preregistered. {scale}{left_off}",
+            apa::level(e.confidence),
+            if open.is_empty() { "" } else { ", an arrow where a side is open" },
+        );
+        out.push(figure(
+            FigureRole::Methods,
+            "Each method's estimate and interval",
+            note,
+            if e.name.in_outcome_units() {
+                format!("difference{unit}, {a} − {b}")
+            } else {
+                format!("probability of superiority, {a} over {b}")
+            },
+            "",
+            names,
+        ));
+    }
     out
 }

@@ -26,7 +26,7 @@ fn per_group(n: &[usize], design: Design) -> String {
 /// The standardised effect a sample-size plan is stated in.
 pub(crate) fn effect_symbol(design: Design) -> &'static str {
     match design {
-        Design::Paired => "*d_z*",
+        Design::Paired => "*d*<sub>z</sub>",
         Design::Independent | Design::OneSample => "*d*",
     }
 }
@@ -44,7 +44,7 @@ pub(crate) fn planned_sentence(
     alt: Alternative,
 ) -> String {
     let mut s = format!(
-        "To detect {} = {} with {} power at α = {}, {}, {} are needed (exact power {} for the t-test)",
+        "To detect {} = {} with {} power at α = {}, {}, {} are needed (exact power {} for the *t* test)",
         effect_symbol(design),
         apa::two(p.effect.abs()),
         pct(p.power_target),
@@ -63,7 +63,7 @@ pub(crate) fn planned_sentence(
 /// The answer of `attest power` in one or more plain lines.
 pub(crate) fn answer_lines(a: &Answer) -> Vec<String> {
     let sym = match a.design {
-        Design::Paired => "dz",
+        Design::Paired => "d_z",
         Design::Independent | Design::OneSample => "d",
     };
     let alpha = apa::bounded(a.alpha, 3);
@@ -106,7 +106,7 @@ pub(crate) fn answer_lines(a: &Answer) -> Vec<String> {
     }
     if let Some(s) = &a.simulated {
         lines.push(format!(
-            "simulated ({} studies, seed {}): t-test power {}, rank test power {} at the sizes for any shape",
+            "simulated ({} studies, seed {}): *t* test power {}, rank test power {} at the sizes for any shape",
             s.reps,
             s.seed,
             apa::bounded(s.t_power, 3),

@@ -15,20 +15,45 @@ use crate::stats::multiplicity::Correction;
 use crate::stats::rank_tests::ZeroRule;
 use crate::stats::{Alternative, PMethod, RankPMethod};
 
-/// The plain name of a method as a reader knows it.
+/// The name of a method as a reader knows it, in Markdown: the statistic
+/// in a name is a symbol and italic, as APA style writes test names
+/// ("*t* test", "Mann–Whitney *U* test"; Publication Manual, 7th ed.,
+/// §6.44).
 pub(crate) fn method_name(method: Method) -> String {
     match method {
-        Method::StudentT => "Student's t-test",
-        Method::WelchT => "Welch's t-test",
-        Method::MannWhitney => "Mann–Whitney U test",
-        Method::PairedT => "paired t-test",
+        Method::StudentT => "Student's *t* test",
+        Method::WelchT => "Welch's *t* test",
+        Method::MannWhitney => "Mann–Whitney *U* test",
+        Method::PairedT => "paired *t* test",
         Method::WilcoxonSignedRank => "Wilcoxon signed-rank test",
-        Method::OneSampleT => "one-sample t-test",
+        Method::OneSampleT => "one-sample *t* test",
         Method::BrunnerMunzel => "Brunner–Munzel test",
-        Method::TrimmedT => "trimmed-mean t-test",
+        Method::TrimmedT => "trimmed-mean *t* test",
         Method::Checked => "chosen by the checks, `checked`",
     }
     .into()
+}
+
+/// The name of a method as plain text, where no italics can be set (the
+/// text inside a figure).
+pub(crate) fn method_plain(method: Method) -> String {
+    method_name(method).replace(['*', '`'], "")
+}
+
+/// An outcome's name inside a sentence: sentence case, so its first letter
+/// is lowercase unless the first word is an abbreviation ("IQ score",
+/// "HbA1c") that keeps its capitals.
+pub(crate) fn mid_sentence(name: &str) -> String {
+    let first_word = name.split_whitespace().next().unwrap_or("");
+    let keeps = first_word
+        .chars()
+        .skip(1)
+        .any(|c| c.is_uppercase() || c.is_ascii_digit());
+    let mut c = name.chars();
+    match c.next() {
+        Some(f) if !keeps => f.to_lowercase().chain(c).collect(),
+        _ => name.to_string(),
+    }
 }
 
 /// What an estimate of the difference is called in sentences and figures.
@@ -43,14 +68,19 @@ pub(crate) fn estimate_name(kind: EstimateKind) -> &'static str {
     }
 }
 
-/// The number rule of an estimate: two decimals for a difference, no
-/// leading zero for a probability (APA 7 §6.36, values that cannot
+/// The number rule of an estimate: `decimals` for a difference (see
+/// [`apa::measured`]), two and no leading zero for a probability (APA 7 §6.36, values that cannot
 /// exceed 1).
-pub(crate) fn estimate_number(kind: EstimateKind) -> fn(f64) -> String {
-    if kind.in_outcome_units() {
-        two
-    } else {
-        |x| apa::bounded(x, 2)
+pub(crate) fn estimate_number(
+    kind: EstimateKind,
+    decimals: usize,
+) -> impl Fn(f64) -> String + Copy {
+    move |x| {
+        if kind.in_outcome_units() {
+            apa::fixed(x, decimals)
+        } else {
+            apa::bounded(x, 2)
+        }
     }
 }
 
@@ -121,10 +151,10 @@ fn effect_symbol(kind: EffectKind) -> (String, fn(f64) -> String) {
     match kind {
         EffectKind::CohenD => (sym("d"), two),
         EffectKind::HedgesG => (sym("g"), two),
-        EffectKind::DZ => (format!("{}z", sym("d")), two),
+        EffectKind::DZ => (apa::sym_sub("d", "z"), two),
         EffectKind::RankBiserial => (format!("rank-biserial {}", sym("r")), bounded),
         EffectKind::ProbabilityOfSuperiority => ("probability of superiority".into(), bounded),
-        EffectKind::RobustD => (format!("robust {}R", sym("d")), two),
+        EffectKind::RobustD => (format!("robust {}", apa::sym_sub("d", "R")), two),
     }
 }
 
@@ -142,30 +172,19 @@ pub(crate) fn effect(e: &EffectSize, confidence: f64) -> String {
     out
 }
 
-/// An effect size with its bounds but no level, for a table whose header
-/// states the level: `*d* = 0.52 [0.11, 0.93]`.
-pub(crate) fn effect_with_bounds(e: &EffectSize) -> String {
-    let (name, fmt) = effect_symbol(e.name);
-    let mut out = format!("{name} = {}", fmt(e.value));
-    if e.ci_low.is_some() || e.ci_high.is_some() {
-        out.push_str(&format!(" {}", apa::bounds(e.ci_low, e.ci_high, fmt)));
-    }
-    out
-}
-
 /// An estimate of the difference with its interval and units (none for
-/// a probability).
-pub(crate) fn estimate(e: &Estimate, units: Option<&str>) -> String {
+/// a probability), a difference to `decimals` (see [`apa::measured`]).
+pub(crate) fn estimate(e: &Estimate, units: Option<&str>, decimals: usize) -> String {
     let u = units
         .filter(|_| e.name.in_outcome_units())
         .map(|u| format!(" {}", escape(u)))
         .unwrap_or_default();
-    let fmt = estimate_number(e.name);
+    let f = estimate_number(e.name, decimals);
     format!(
         "{} = {}{u}, {}",
         estimate_name(e.name),
-        fmt(e.value),
-        apa::ci(e.confidence, e.ci_low, e.ci_high, fmt)
+        f(e.value),
+        apa::ci(e.confidence, e.ci_low, e.ci_high, f)
     )
 }
 
@@ -204,24 +223,24 @@ pub(crate) fn p_of(h: &HypothesisResult, correction: Correction) -> String {
     out
 }
 
-fn describe(g: Option<&GroupSummary>, rank: bool) -> String {
+fn describe(g: Option<&GroupSummary>, rank: bool, decimals: usize) -> String {
     let Some(g) = g.map(|g| &g.describe) else {
         return String::new();
     };
+    let f = |x| apa::fixed(x, decimals);
     if rank {
-        format!(" ({} = {})", sym("Mdn"), two(g.median))
+        format!(" ({} = {})", sym("Mdn"), f(g.median))
     } else {
         match g.sd {
-            Some(sd) => format!(
-                " ({} = {}, {} = {})",
-                sym("M"),
-                two(g.mean),
-                sym("SD"),
-                two(sd)
-            ),
-            None => format!(" ({} = {})", sym("M"), two(g.mean)),
+            Some(sd) => format!(" ({} = {}, {} = {})", sym("M"), f(g.mean), sym("SD"), f(sd)),
+            None => format!(" ({} = {})", sym("M"), f(g.mean)),
         }
     }
+}
+
+/// `s` with its first letter in capitals (a sentence's opening).
+pub(crate) fn capitalise(s: &str) -> String {
+    capitalised(s)
 }
 
 fn capitalised(s: &str) -> String {
@@ -238,18 +257,36 @@ pub(crate) fn one_sentence(h: &HypothesisResult, correction: Correction) -> Stri
         return equivalence_sentence(h, eq);
     }
     let rank = h.method.is_rank();
-    let outcome = escape(&h.outcome_label);
+    let digits = apa::measured(h.recorded_decimals);
+    let outcome = escape(&mid_sentence(&h.outcome_label));
+    let opening = escape(&capitalised(&h.outcome_label));
     let (a, b) = (escape(&h.labels[0]), escape(&h.labels[1]));
     let (da, db) = (
-        describe(h.groups.first(), rank),
-        describe(h.groups.get(1), rank),
+        describe(h.groups.first(), rank, digits),
+        describe(h.groups.get(1), rank, digits),
     );
     let rejected = h.decision == Decision::Reject;
-    let higher = match h.alternative {
-        Alternative::Greater => true,
-        Alternative::Less => false,
-        Alternative::TwoSided => h.estimate.value >= h.estimate.name.null_value(),
+    // The estimate on the side opposite to the preregistered direction:
+    // the sentence says which way the data went, and that it is not the
+    // way the plan expected.
+    let null = h.estimate.name.null_value();
+    let opposite = match h.alternative {
+        Alternative::Greater => h.estimate.value < null,
+        Alternative::Less => h.estimate.value > null,
+        Alternative::TwoSided => false,
     };
+    let higher = match h.alternative {
+        Alternative::Greater => !opposite,
+        Alternative::Less => opposite,
+        Alternative::TwoSided => h.estimate.value >= null,
+    };
+    let expected = match (h.alternative, rank) {
+        (Alternative::Greater, false) => "higher",
+        (Alternative::Greater, true) => "tending to be higher",
+        (_, false) => "lower",
+        (_, true) => "tending to be lower",
+    };
+    let against = format!(", the opposite of the preregistered direction ({expected})");
     let word = match (rank, higher) {
         (false, true) => "higher",
         (false, false) => "lower",
@@ -261,8 +298,20 @@ pub(crate) fn one_sentence(h: &HypothesisResult, correction: Correction) -> Stri
         Design::Independent | Design::OneSample => (format!("for {a}"), format!("for {b}")),
     };
     let lead = match (h.design, rejected, h.alternative) {
+        (Design::OneSample, _, _) if opposite => {
+            let reference = h.reference.map(apa::stated).unwrap_or_default();
+            format!(
+                "{} in {a}{da} was {word} than the reference value of {reference}{against}",
+                opening
+            )
+            .replace("was tended", "tended")
+        }
+        (_, _, _) if opposite => {
+            format!("{} was {word} {on_a}{da} than {on_b}{db}{against}", opening)
+                .replace("was tended", "tended")
+        }
         (Design::OneSample, _, _) => {
-            let reference = h.reference.map(two).unwrap_or_default();
+            let reference = h.reference.map(apa::stated).unwrap_or_default();
             let verb = if rejected {
                 format!("was {word} than")
             } else if h.alternative == Alternative::TwoSided {
@@ -275,20 +324,17 @@ pub(crate) fn one_sentence(h: &HypothesisResult, correction: Correction) -> Stri
             };
             format!(
                 "{} in {a}{da} {verb} the reference value of {reference}",
-                capitalised(&outcome)
+                opening
             )
         }
-        (_, true, _) => format!(
-            "{} was {word} {on_a}{da} than {on_b}{db}",
-            capitalised(&outcome)
-        )
-        .replace("was tended", "tended"),
+        (_, true, _) => format!("{} was {word} {on_a}{da} than {on_b}{db}", opening)
+            .replace("was tended", "tended"),
         (_, false, Alternative::TwoSided) => {
             format!("The data did not show a difference in {outcome} between {a}{da} and {b}{db}")
         }
         (_, false, _) => format!(
             "{} was not shown to be {} {on_a}{da} than {on_b}{db}",
-            capitalised(&outcome),
+            opening,
             word.trim_start_matches("tended to be ")
         ),
     };
@@ -297,13 +343,14 @@ pub(crate) fn one_sentence(h: &HypothesisResult, correction: Correction) -> Stri
         "{lead}, {}, {}; {}; {}.",
         statistic(&h.test),
         p_of(h, correction),
-        estimate(&h.estimate, h.units.as_deref()),
+        estimate(&h.estimate, h.units.as_deref(), digits),
         effect(&h.effect, conf)
     )
 }
 
 fn equivalence_sentence(h: &HypothesisResult, eq: &EquivalenceResult) -> String {
-    let outcome = escape(&h.outcome_label);
+    let outcome = escape(&mid_sentence(&h.outcome_label));
+    let digits = apa::measured(h.recorded_decimals);
     let (a, b) = (escape(&h.labels[0]), escape(&h.labels[1]));
     let u = if eq.on.in_outcome_units() {
         h.units
@@ -313,7 +360,14 @@ fn equivalence_sentence(h: &HypothesisResult, eq: &EquivalenceResult) -> String 
     } else {
         String::new()
     };
-    let fmt = estimate_number(eq.on);
+    let fmt = estimate_number(eq.on, digits);
+    let bound = |x: f64| {
+        if eq.on.in_outcome_units() {
+            apa::stated(x)
+        } else {
+            apa::bounded(x, 2)
+        }
+    };
     let verdict = if h.decision == Decision::Reject {
         "was equivalent within the bounds"
     } else {
@@ -329,8 +383,8 @@ fn equivalence_sentence(h: &HypothesisResult, eq: &EquivalenceResult) -> String 
     };
     format!(
         "The {what} in {outcome} between {between} {verdict} of {} and {}{u} ({}); {what} = {}{u}, {}.",
-        fmt(eq.low),
-        fmt(eq.high),
+        bound(eq.low),
+        bound(eq.high),
         equivalence_tests(h, eq, false),
         fmt(h.estimate.value),
         apa::ci(eq.ci_level, Some(eq.ci_low), Some(eq.ci_high), fmt),
@@ -432,8 +486,8 @@ pub(crate) fn conventions(t: &TestResult) -> Option<String> {
                 _ => "the values are trimmed (the trimmed *t* of Tukey & McLaughlin, 1963)".to_string(),
             };
             return Some(format!(
-                "{share} of the values are cut from each end before the means are taken: {whose}. The effect, robust {}R, is the trimmed difference over the winsorised standard deviation, rescaled to estimate Cohen's {} under normality (Algina, Keselman & Penfield, 2005).",
-                sym("d"),
+                "{share} of the values are cut from each end before the means are taken: {whose}. The effect, robust {}, is the trimmed difference over the winsorised standard deviation, rescaled to estimate Cohen's {} under normality (Algina, Keselman & Penfield, 2005).",
+                apa::sym_sub("d", "R"),
                 sym("d")
             ));
         }
