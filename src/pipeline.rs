@@ -52,6 +52,8 @@ pub(crate) fn check(path: &Path) -> Result<AnalysisFile> {
     let file = validate::load(path)?;
     // A sample-size plan that cannot be met is a plan error, found now.
     planned_sizes(&file.plan)?;
+    // So are value names that cannot be told apart.
+    render::values::check_plan(&file.plan, &lock::file_name(path)).map_err(|e| e.in_file(path))?;
     Ok(file)
 }
 
@@ -78,7 +80,7 @@ pub(crate) fn lock(
     templates: Option<&Path>,
     force: bool,
 ) -> Result<LockOutcome> {
-    let file = validate::load(path)?;
+    let file = check(path)?;
     let lock_path = lock::lock_path(path);
     if lock_path.exists() {
         return Err(Failure::input(format!("{} is already locked ({} exists)", path.display(), lock_path.display()))
