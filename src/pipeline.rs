@@ -162,6 +162,7 @@ fn lock_state(
         data_existed: lock.data.existed,
         data_sha256: lock.data.sha256.clone(),
         intact: lock.intact(),
+        rehearsals: crate::rehearsal::records(&file.path)?,
         witness: crate::witness::witness(
             &lock_path,
             &bytes,
@@ -187,15 +188,7 @@ pub(crate) fn compute(path: &Path, unlocked: bool) -> Result<Results> {
     let dir = plan_dir(path);
     let ds = data::load(&file.plan, &dir)?;
     let plan = &file.plan;
-    let mut hyps = plan
-        .hypotheses
-        .par_iter()
-        .map(|h| {
-            let sel = data::select(&ds, plan, h)?;
-            analysis::analyse(plan, h, sel)
-        })
-        .collect::<Result<Vec<_>>>()?;
-    let correction_applied = analysis::adjust_all(plan, &mut hyps);
+    let (hyps, not_computed, correction_applied) = analyse_all(plan, &ds, None)?;
     let analysis_file = lock::file_name(path);
     let command = if unlocked {
         format!("attest run --unlocked {analysis_file}")
@@ -218,10 +211,175 @@ pub(crate) fn compute(path: &Path, unlocked: bool) -> Result<Results> {
             outside_plan_folder: outside(&dir, &ds.path),
         },
         hypotheses: hyps,
+        not_computed,
+        as_locked: None,
+        rehearsal: None,
         correction_applied,
         command,
         analysis_file,
     })
+}
+
+/// What `rehearse` produced.
+pub(crate) struct RehearseOutcome {
+    /// The blinded results.
+    pub results: Results,
+    /// Where the outputs are.
+    pub out_dir: PathBuf,
+    /// The record written beside the lock, when a lock exists.
+    pub recorded: Option<PathBuf>,
+}
+
+/// The default folder of a rehearsal: `out/<stem>.rehearsal/`, beside the
+/// run's folder and never inside it, so neither output set ever holds
+/// files of the other.
+pub(crate) fn default_rehearsal_out(path: &Path) -> PathBuf {
+    let run = default_out(path);
+    let name = run
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    run.with_file_name(format!("{name}.rehearsal"))
+}
+
+/// `attest rehearse`: the whole plan on blinded data (see `rehearsal`).
+pub(crate) fn rehearse(
+    path: &Path,
+    out: Option<&Path>,
+    seed: Option<u64>,
+    templates: Option<&Path>,
+    force: bool,
+) -> Result<RehearseOutcome> {
+    let file = check(path)?;
+    let lock_path = lock::lock_path(path);
+    let locked = lock_path.exists();
+    let (state, record, changes) = lock_state(&file, !locked)?;
+    let dir = plan_dir(path);
+    let ds = data::load(&file.plan, &dir)?;
+    let plan = &file.plan;
+    let seed = seed.unwrap_or(plan.seed);
+    let (hyps, not_computed, correction_applied) = analyse_all(plan, &ds, Some(seed))?;
+    let designs: Vec<_> = plan.hypotheses.iter().map(|h| h.design).collect();
+    let analysis_file = lock::file_name(path);
+    let results = Results {
+        tool: "attest".into(),
+        rehearsal: Some(Rehearsal {
+            notice: crate::rehearsal::NOTICE.into(),
+            seed,
+            blinding: crate::rehearsal::blinding_words(&designs),
+        }),
+        version: env!("CARGO_PKG_VERSION").into(),
+        plan_sha256: plan_hash(plan),
+        lock: state,
+        lock_record: record,
+        changes,
+        deviations: file.deviations.clone(),
+        plan: plan.clone(),
+        data: DataRecord {
+            path: plan.data.path.clone(),
+            sha256: ds.sha256.clone(),
+            rows: ds.rows,
+            outside_plan_folder: outside(&dir, &ds.path),
+        },
+        hypotheses: hyps,
+        not_computed,
+        as_locked: None,
+        correction_applied,
+        command: format!("attest rehearse --seed {seed} {analysis_file}"),
+        analysis_file,
+    };
+    let files = crate::rehearsal::stamp(render::render_run(&results, templates)?);
+    let out_dir = out
+        .map(Path::to_path_buf)
+        .unwrap_or_else(|| default_rehearsal_out(path));
+    let target = output::prepare(&out_dir, force)?;
+    let mut recorded = None;
+    target.write(&files, || {
+        if locked {
+            let lock_sha = results
+                .lock_record
+                .as_ref()
+                .map(|l| l.sha256.clone())
+                .unwrap_or_default();
+            let rec = RehearsalRecord {
+                at: lock::rfc3339_utc(lock::now_epoch()),
+                data_sha256: ds.sha256.clone(),
+                lock_sha256: lock_sha,
+                seed,
+                version: env!("CARGO_PKG_VERSION").into(),
+            };
+            recorded = Some(crate::rehearsal::record(path, &rec)?);
+        }
+        Ok(())
+    })?;
+    Ok(RehearseOutcome {
+        results,
+        out_dir,
+        recorded,
+    })
+}
+
+/// Every hypothesis of a plan on a loaded dataset: the results, the
+/// hypotheses whose values leave their test undefined, and the correction
+/// that applied. Selecting a hypothesis' values fails the whole plan (a
+/// column or level that is not there is a plan error); a test that cannot
+/// be computed on the values fails only its hypothesis, unless no
+/// hypothesis can be computed at all. `blind` (a seed) blinds each
+/// hypothesis' values before the analysis, for a rehearsal.
+pub(crate) fn analyse_all(
+    plan: &crate::plan::Plan,
+    ds: &data::Dataset,
+    blind: Option<u64>,
+) -> Result<(Vec<HypothesisResult>, Vec<NotComputed>, Correction)> {
+    let outcomes = plan
+        .hypotheses
+        .par_iter()
+        .enumerate()
+        .map(|(i, h)| {
+            let mut sel = data::select(ds, plan, h)?;
+            if let Some(seed) = blind {
+                crate::rehearsal::blind(&mut sel, h, seed, i);
+            }
+            let rows = sel.flow.clone();
+            match analysis::analyse(plan, h, sel) {
+                Ok(r) => Ok(Ok(r)),
+                Err(f) if f.kind == crate::error::Kind::Input => {
+                    let prefix = format!("hypothesis {}: ", h.id);
+                    let reason = f.what.strip_prefix(&prefix).unwrap_or(&f.what).to_string();
+                    Ok(Err((
+                        f,
+                        NotComputed {
+                            id: h.id.clone(),
+                            claim: h.claim.clone(),
+                            reason,
+                            rows,
+                        },
+                    )))
+                }
+                Err(f) => Err(f),
+            }
+        })
+        .collect::<Result<Vec<_>>>()?;
+    let mut hyps = Vec::new();
+    let mut not_computed = Vec::new();
+    let mut first_failure = None;
+    for o in outcomes {
+        match o {
+            Ok(r) => hyps.push(r),
+            Err((f, nc)) => {
+                first_failure.get_or_insert(f);
+                not_computed.push(nc);
+            }
+        }
+    }
+    if hyps.is_empty() {
+        if let Some(f) = first_failure {
+            // Nothing to report: the refusal says why.
+            return Err(f);
+        }
+    }
+    let correction = analysis::adjust_family(plan, &mut hyps, not_computed.len());
+    Ok((hyps, not_computed, correction))
 }
 
 /// Whether `data` lies outside the folder tree of the analysis file.

@@ -395,6 +395,7 @@ fn h2() -> HypothesisResult {
 fn scenario() -> Results {
     Results {
         tool: "attest".into(),
+        rehearsal: None,
         version: "0.1.0".into(),
         plan_sha256: "3f1c0d6e9b2a4c8d7e6f5a4b3c2d1e0f9a8b7c6d5e4f3a2b1c0d9e8f7a6b5c4d".into(),
         lock: LockState::AsLocked,
@@ -408,6 +409,7 @@ fn scenario() -> Results {
             intact: true,
             witness: attest::witness::Witness::NoGit,
             evidence: vec![],
+            rehearsals: vec![],
         }),
         changes: vec![],
         deviations: vec![],
@@ -419,6 +421,8 @@ fn scenario() -> Results {
             outside_plan_folder: false,
         },
         hypotheses: vec![h1(), h2()],
+        not_computed: vec![],
+        as_locked: None,
         correction_applied: Correction::Holm,
         command: "attest run garden.toml".into(),
         analysis_file: "garden.toml".into(),

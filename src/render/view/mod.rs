@@ -11,6 +11,7 @@
 //! values) is fed the same [`ReportView`] next to the raw model.
 
 pub(crate) mod apa;
+pub(crate) mod deviations;
 pub(crate) mod planning;
 pub(crate) mod provenance;
 pub(crate) mod sentence;
@@ -133,6 +134,9 @@ pub(crate) struct FigureView {
 pub(crate) struct ReportView {
     title: String,
     status: Value,
+    rehearsal: Option<Value>,
+    blinding: Vec<String>,
+    not_computed: Vec<Vec<String>>,
     changes: Vec<Vec<String>>,
     deviations: Vec<Vec<String>>,
     lock_state: LockState,
@@ -173,6 +177,9 @@ pub(crate) fn report(r: &Results) -> ReportView {
     ReportView {
         title: r.plan.title.clone(),
         status: md(status(r)),
+        rehearsal: deviations::rehearsal_banner(r).map(md),
+        blinding: deviations::blinding(r),
+        not_computed: deviations::not_computed(r),
         changes: r
             .changes
             .iter()
@@ -244,6 +251,10 @@ fn status(r: &Results) -> String {
             s.push(' ');
             s.push_str(&escape(&w));
         }
+    }
+    if let Some(n) = deviations::not_computed_status(r) {
+        s.push(' ');
+        s.push_str(&n);
     }
     s
 }
