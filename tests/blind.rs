@@ -68,3 +68,191 @@ fn colliding_and_non_ascii_names_pass_check_lock_and_run() {
         );
     }
 }
+
+/// Every number written in a rehearsal's Markdown, HTML text, SVG text and
+/// JSON (SVG and HTML coordinates are drawing positions, not reported
+/// numbers, so only text content and attribute-free text count).
+fn numbers_in(dir: &std::path::Path) -> Vec<f64> {
+    let mut out = Vec::new();
+    for (name, bytes) in common::tree(dir) {
+        let text = String::from_utf8_lossy(&bytes).into_owned();
+        let text = if name.ends_with(".svg") || name.ends_with(".html") {
+            // Keep what lies between tags.
+            let mut s = String::new();
+            let mut inside = false;
+            for ch in text.chars() {
+                match ch {
+                    '<' => inside = true,
+                    '>' => {
+                        inside = false;
+                        s.push(' ');
+                    }
+                    _ if !inside => s.push(ch),
+                    _ => {}
+                }
+            }
+            s
+        } else {
+            text
+        };
+        let text = text.replace('−', "-");
+        // A number is a whole token: hashes and names that hold digits
+        // ("d24f", "H1") are not numbers.
+        for token in text.split(|c: char| !(c.is_ascii_alphanumeric() || c == '.' || c == '-')) {
+            if let Ok(v) = token.trim_end_matches('.').parse::<f64>() {
+                out.push(v);
+            }
+        }
+    }
+    out
+}
+
+/// Whether some number lies within 3 % of `target` (or of its negative).
+fn reveals(numbers: &[f64], target: f64) -> Option<f64> {
+    numbers
+        .iter()
+        .copied()
+        .find(|v| (v.abs() - target.abs()).abs() <= 0.03 * target.abs())
+}
+
+/// A deterministic normal-looking scatter (Box–Muller on a fixed sequence).
+fn noise(i: usize) -> f64 {
+    let u1 = ((i * 7919 + 13) % 1000) as f64 / 1000.0 + 0.0005;
+    let u2 = ((i * 104_729 + 7) % 1000) as f64 / 1000.0;
+    (-2.0 * u1.ln()).sqrt() * (2.0 * std::f64::consts::PI * u2).cos()
+}
+
+#[test]
+fn a_rehearsal_reveals_no_true_effect_in_any_design() {
+    // True effects far from any number the blinded report has: a mean
+    // difference of 23.7 on values near 100 with SD about 2 (d about 11.8).
+    let c = Case::new();
+    let mut csv = String::from("unit,group,score,before,after,level\n");
+    for i in 0..40 {
+        let (g, centre) = if i < 20 {
+            ("new", 111.85)
+        } else {
+            ("old", 88.15)
+        };
+        let before = 100.0 + 2.0 * noise(i + 100);
+        let after = before - 23.7 + 2.0 * noise(i + 300);
+        csv.push_str(&format!(
+            "{i},{g},{:.4},{before:.4},{after:.4},{:.4}\n",
+            centre + 2.0 * noise(i),
+            100.0 + 2.0 * noise(i + 500)
+        ));
+    }
+    c.write("data.csv", &csv);
+    let plan = "attest = 1\ntitle = \"Blind\"\nauthors = [\"A. Researcher\"]\n\n[data]\npath = \"data.csv\"\n\n\
+        [[hypothesis]]\nid = \"H1\"\nclaim = \"New is higher.\"\ndesign = \"independent\"\noutcome = \"score\"\ngroup = \"group\"\nlevels = [\"new\", \"old\"]\nmethod = \"welch-t\"\nrobustness = true\n\n\
+        [[hypothesis]]\nid = \"H2\"\nclaim = \"Before is higher.\"\ndesign = \"paired\"\nfirst = \"before\"\nsecond = \"after\"\nmethod = \"paired-t\"\nrobustness = true\n\n\
+        [[hypothesis]]\nid = \"H3\"\nclaim = \"Scores differ from 76.3.\"\ndesign = \"one-sample\"\noutcome = \"level\"\nreference = 76.3\nmethod = \"one-sample-t\"\nrobustness = true\n";
+    c.write("blind.toml", plan);
+    c.attest(&["rehearse", "blind.toml"]).success();
+    let dir = c.path().join("out/blind.rehearsal");
+    assert!(!dir.join("values.tex").exists() && !dir.join("values.json").exists());
+    let numbers = numbers_in(&dir);
+    // The unblinded run is the control: the same scan finds the effects
+    // there, so the scan can fail.
+    c.attest(&["run", "--unlocked", "blind.toml"]).success();
+    let real = numbers_in(&c.path().join("out/blind"));
+    let results: serde_json::Value =
+        serde_json::from_str(&c.read("out/blind/results.json")).unwrap();
+    for (i, design) in ["independent", "paired", "one-sample"].iter().enumerate() {
+        let h = &results["hypotheses"][i];
+        let diff = h["estimate"]["value"].as_f64().unwrap();
+        let effect = h["effect"]["value"].as_f64().unwrap();
+        let median = match *design {
+            "independent" => {
+                h["groups"][0]["median"].as_f64().unwrap()
+                    - h["groups"][1]["median"].as_f64().unwrap()
+            }
+            "paired" => h["groups"][2]["median"].as_f64().unwrap(),
+            _ => h["groups"][0]["median"].as_f64().unwrap() - 76.3,
+        };
+        for (what, v) in [
+            ("mean difference", diff),
+            ("median difference", median),
+            ("effect size", effect),
+        ] {
+            assert!(
+                v.abs() > 5.0,
+                "{design} {what} {v}: the test needs a large effect"
+            );
+            assert!(
+                reveals(&real, v).is_some(),
+                "control: the run shows the {design} {what}"
+            );
+            assert_eq!(
+                reveals(&numbers, v),
+                None,
+                "the rehearsal reveals the {design} {what} ({v})"
+            );
+        }
+    }
+    // Every output says what it is.
+    for (name, bytes) in common::tree(&dir) {
+        if name.ends_with(".sha256") {
+            continue;
+        }
+        let text = String::from_utf8_lossy(&bytes);
+        assert!(
+            text.contains("REHEARSAL ON BLINDED DATA")
+                || text.contains("Rehearsal on blinded data"),
+            "{name} is not stamped as a rehearsal"
+        );
+    }
+}
+
+#[test]
+fn one_degenerate_hypothesis_is_explained_and_the_others_reported() {
+    let c = Case::new();
+    let mut csv = String::from("unit,group,score,flat\n");
+    for i in 0..24 {
+        let g = if i % 2 == 0 { "a" } else { "b" };
+        csv.push_str(&format!(
+            "{i},{g},{},{}\n",
+            10.0 + (i % 5) as f64 + if g == "a" { 2.0 } else { 0.0 },
+            if g == "a" { 5 } else { 7 }
+        ));
+    }
+    c.write("data.csv", &csv);
+    let hyp = |id: &str, outcome: &str| {
+        format!("[[hypothesis]]\nid = \"{id}\"\nclaim = \"Group a differs.\"\ndesign = \"independent\"\noutcome = \"{outcome}\"\ngroup = \"group\"\nlevels = [\"a\", \"b\"]\nmethod = \"welch-t\"\n\n")
+    };
+    c.write(
+        "three.toml",
+        &format!(
+            "attest = 1\ntitle = \"Three\"\nauthors = [\"A. Researcher\"]\ncorrection = \"bonferroni\"\n\n[data]\npath = \"data.csv\"\n\n{}{}{}",
+            hyp("H1", "score"),
+            hyp("H2", "flat"),
+            hyp("H3", "score")
+        ),
+    );
+    let out = c.attest(&["run", "--unlocked", "three.toml"]).code(5);
+    let stderr = String::from_utf8_lossy(&out.get_output().stderr).into_owned();
+    assert!(stderr.contains("not computed: H2"), "{stderr}");
+    let r: serde_json::Value = serde_json::from_str(&c.read("out/three/results.json")).unwrap();
+    let ids: Vec<&str> = r["hypotheses"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|h| h["id"].as_str().unwrap())
+        .collect();
+    assert_eq!(ids, ["H1", "H3"]);
+    let reason = r["not_computed"][0]["reason"].as_str().unwrap();
+    assert_eq!(r["not_computed"][0]["id"], "H2");
+    // The groups differ (5 against 7), so "identical" would be untrue.
+    assert!(!reason.contains("identical"), "{reason}");
+    assert!(reason.contains("within each group is the same"), "{reason}");
+    // Bonferroni still counts three hypotheses.
+    let p = r["hypotheses"][0]["p"].as_f64().unwrap();
+    let adj = r["hypotheses"][0]["p_adjusted"].as_f64().unwrap();
+    assert!((adj - (3.0 * p).min(1.0)).abs() < 1e-12, "{p} {adj}");
+    let report = c.read("out/three/report.md");
+    assert!(report.contains("## Not computed"), "{report}");
+    assert!(
+        report.contains("Hypothesis H2 could not be computed"),
+        "{report}"
+    );
+}
