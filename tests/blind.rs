@@ -256,3 +256,57 @@ fn one_degenerate_hypothesis_is_explained_and_the_others_reported() {
         "{report}"
     );
 }
+
+#[test]
+fn a_deviation_is_tabled_with_the_locked_value_and_a_contradicted_timing_is_flagged() {
+    let c = Case::new();
+    let mut rows = spread("a", 12.0);
+    rows.extend(spread("b", 10.0));
+    c.write("data.csv", &groups_csv(&rows));
+    let head = "attest = 1\ntitle = \"Dev\"\nauthors = [\"A. Researcher\"]\n\n[data]\npath = \"data.csv\"\n\n";
+    c.write(
+        "dev.toml",
+        &format!("{head}{}", independent("H1", ["a", "b"])),
+    );
+    c.attest(&["lock", "dev.toml"]).success();
+    // A rehearsal after the lock reads the data and is recorded.
+    c.attest(&["rehearse", "dev.toml"]).success();
+    assert!(c.exists("dev.rehearsal-1.json"));
+    c.attest(&["rehearse", "dev.toml"]).success();
+    assert!(
+        c.exists("dev.rehearsal-2.json"),
+        "a second record never overwrites the first"
+    );
+    let changed = independent("H1", ["a", "b"]).replace("welch-t", "student-t");
+    c.write(
+        "dev.toml",
+        &format!(
+            "{head}{changed}[[deviation]]\ndate = \"2025-12-01\"\nfield = \"hypotheses[H1].method\"\nchange = \"Student's t\"\nreason = \"The spreads were planned to be equal.\"\nwhen = \"before-access\"\neffect = \"The p value assumes equal spreads.\"\nseverity = \"unclear\"\n"
+        ),
+    );
+    c.attest(&["run", "dev.toml"]).success();
+    let report = c.read("out/dev/report.md");
+    let row = report
+        .lines()
+        .find(|l| {
+            l.starts_with("| hypotheses\\[H1\\].method") || l.starts_with("| hypotheses[H1].method")
+        })
+        .unwrap_or_else(|| panic!("{report}"));
+    assert!(
+        row.contains("welch-t"),
+        "the locked value fills what the plan said: {row}"
+    );
+    assert!(row.contains("Student's t (now: student-t)"), "{row}");
+    assert!(
+        row.contains("CONTRADICTED by the record, a rehearsal read the data"),
+        "{row}"
+    );
+    assert!(row.contains("unclear"), "{row}");
+    assert!(
+        report.contains("The record contradicts the timing one deviation claims"),
+        "{report}"
+    );
+    let r: serde_json::Value = serde_json::from_str(&c.read("out/dev/results.json")).unwrap();
+    assert_eq!(r["deviations"][0]["when"], "before-access");
+    assert_eq!(r["lock_record"]["rehearsals"].as_array().unwrap().len(), 2);
+}

@@ -41,3 +41,137 @@ pub(crate) fn blinding(r: &Results) -> Vec<String> {
         .map(|b| b.blinding.clone())
         .unwrap_or_default()
 }
+
+/// The one table of changes since the lock: every field that differs from
+/// the locked plan, with the deviation that declares it, and every
+/// declared deviation no field shows (a change of procedure, say). Cells:
+/// what changed, what the plan said, what was done instead, why, when,
+/// the effect on the reading, and whether (and when) it was declared.
+pub(crate) fn changes_table(r: &Results) -> Vec<Vec<String>> {
+    let mut rows = Vec::new();
+    let mut used = vec![false; r.deviations.len()];
+    for c in &r.changes {
+        let k = r
+            .deviations
+            .iter()
+            .position(|d| d.field.as_deref() == Some(c.field.as_str()));
+        if let Some(k) = k {
+            used[k] = true;
+        }
+        let d = k.map(|k| &r.deviations[k]);
+        rows.push(vec![
+            c.field.clone(),
+            match d.and_then(|d| d.planned.clone()) {
+                Some(p) => format!("{p} (locked: {})", c.locked),
+                None => c.locked.clone(),
+            },
+            match d {
+                Some(d) => format!("{} (now: {})", d.change, c.current),
+                None => c.current.clone(),
+            },
+            d.map(|d| d.reason.clone())
+                .unwrap_or_else(|| "not declared".into()),
+            d.map(|d| timing(r, d))
+                .unwrap_or_else(|| "not stated".into()),
+            d.map(reading).unwrap_or_else(|| "not stated".into()),
+            match d {
+                Some(d) => format!("declared {}", d.date),
+                None => "detected only: no [[deviation]] names this field".into(),
+            },
+        ]);
+    }
+    for (d, _) in r.deviations.iter().zip(&used).filter(|(_, u)| !**u) {
+        rows.push(vec![
+            d.field
+                .clone()
+                .unwrap_or_else(|| "(not a field of the plan)".into()),
+            d.planned.clone().unwrap_or_else(|| "not stated".into()),
+            d.change.clone(),
+            d.reason.clone(),
+            timing(r, d),
+            reading(d),
+            format!("declared {}", d.date),
+        ]);
+    }
+    rows
+}
+
+fn reading(d: &crate::plan::Deviation) -> String {
+    use crate::plan::Severity;
+    let severity = d.severity.map(|s| match s {
+        Severity::Weaker => "the test is weaker than the locked one",
+        Severity::Same => "the test is as severe as the locked one",
+        Severity::Stronger => "the test is stronger than the locked one",
+        Severity::Unclear => "whether the test is weaker or stronger is unclear",
+    });
+    match (&d.effect, severity) {
+        (Some(e), Some(s)) => format!("{e} ({s})"),
+        (Some(e), None) => e.clone(),
+        (None, Some(s)) => s.to_string(),
+        (None, None) => "not stated".into(),
+    }
+}
+
+/// The deviation's timing in words, flagged when what attest recorded
+/// contradicts it.
+fn timing(r: &Results, d: &crate::plan::Deviation) -> String {
+    use crate::plan::Timing;
+    let Some(when) = d.when else {
+        return "not stated".into();
+    };
+    let words = match when {
+        Timing::BeforeCollection => "before data collection",
+        Timing::BeforeAccess => "after collection, before data access",
+        Timing::BeforeAnalysis => "after data access, before analysis",
+        Timing::AfterResults => "after seeing results",
+    };
+    match timing_conflict(r, d) {
+        Some(why) => format!("{words}: CONTRADICTED by the record, {why}"),
+        None => words.to_string(),
+    }
+}
+
+/// What the record says against a deviation's timing, if anything: data
+/// that existed at the lock (against "before collection"), a recorded
+/// rehearsal that read the data on or before the deviation's date
+/// (against "before collection" and "before access"), or a date before
+/// the lock itself.
+pub(crate) fn timing_conflict(r: &Results, d: &crate::plan::Deviation) -> Option<String> {
+    use crate::plan::Timing;
+    let when = d.when?;
+    let l = r.lock_record.as_ref()?;
+    let day = |t: &str| t.get(..10).unwrap_or(t).to_string();
+    let dated = iso_day(&d.date);
+    if let Some(day_of) = &dated {
+        if *day_of < day(&l.locked_at) {
+            return Some(format!(
+                "it is dated {day_of}, before the plan was locked ({})",
+                day(&l.locked_at)
+            ));
+        }
+    }
+    if when == Timing::BeforeCollection && l.data_existed {
+        return Some("the data file already existed when the plan was locked".into());
+    }
+    if matches!(when, Timing::BeforeCollection | Timing::BeforeAccess) {
+        let read = l.rehearsals.iter().find(|x| match &dated {
+            Some(day_of) => day(&x.at) <= *day_of,
+            None => true,
+        });
+        if let Some(x) = read {
+            return Some(format!("a rehearsal read the data on {}", day(&x.at)));
+        }
+    }
+    None
+}
+
+/// `YYYY-MM-DD` at the start of a date text, if it has one.
+fn iso_day(s: &str) -> Option<String> {
+    let t = s.trim().get(..10)?;
+    let b = t.as_bytes();
+    let ok = b.iter().enumerate().all(|(i, c)| match i {
+        4 | 7 => *c == b'-',
+        _ => c.is_ascii_digit(),
+    });
+    ok.then(|| t.to_string())
+}

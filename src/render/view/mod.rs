@@ -137,6 +137,7 @@ pub(crate) struct ReportView {
     rehearsal: Option<Value>,
     blinding: Vec<String>,
     not_computed: Vec<Vec<String>>,
+    changes_table: Vec<Vec<String>>,
     changes: Vec<Vec<String>>,
     deviations: Vec<Vec<String>>,
     lock_state: LockState,
@@ -180,6 +181,7 @@ pub(crate) fn report(r: &Results) -> ReportView {
         rehearsal: deviations::rehearsal_banner(r).map(md),
         blinding: deviations::blinding(r),
         not_computed: deviations::not_computed(r),
+        changes_table: deviations::changes_table(r),
         changes: r
             .changes
             .iter()
@@ -251,6 +253,24 @@ fn status(r: &Results) -> String {
             s.push(' ');
             s.push_str(&escape(&w));
         }
+    }
+    if r.lock == LockState::AsLocked && !r.deviations.is_empty() {
+        s.push_str(" Deviations are declared; see *Changes since the lock*.");
+    }
+    let contradicted = r
+        .deviations
+        .iter()
+        .filter(|d| deviations::timing_conflict(r, d).is_some())
+        .count();
+    if contradicted > 0 {
+        s.push_str(&format!(
+            " **The record contradicts the timing {} claims**; see *Changes since the lock*.",
+            if contradicted == 1 {
+                "one deviation".to_string()
+            } else {
+                format!("{contradicted} deviations")
+            }
+        ));
     }
     if let Some(n) = deviations::not_computed_status(r) {
         s.push(' ');
