@@ -139,9 +139,10 @@ fn dispatch(cli: Cli) -> Result<i32> {
             force,
         } => {
             let o = pipeline::rehearse(&file, out.as_deref(), seed, templates.as_deref(), force)?;
+            let n = o.results.hypotheses.len();
             say(&format!(
-                "rehearsed on blinded data: {} hypotheses ran, {} could not be computed\nwrote {} (every page stamped as a rehearsal; no named values)",
-                o.results.hypotheses.len(),
+                "rehearsed on blinded data: {n} {} ran, {} could not be computed\nwrote {} (every page stamped as a rehearsal; no named values)",
+                if n == 1 { "hypothesis" } else { "hypotheses" },
                 o.results.not_computed.len(),
                 crate::error::clean(&o.out_dir.display().to_string())
             ))?;

@@ -254,6 +254,19 @@ fn status(r: &Results) -> String {
             s.push_str(&escape(&w));
         }
     }
+    if let Some(l) = &r.lock_record {
+        if let Some(first) = l.rehearsals.first() {
+            s.push_str(&format!(
+                " Rehearsed on blinded data after the lock: {} (first {}).",
+                if l.rehearsals.len() == 1 {
+                    "once".to_string()
+                } else {
+                    format!("{} times", l.rehearsals.len())
+                },
+                escape(date_of(&first.at))
+            ));
+        }
+    }
     if r.lock == LockState::AsLocked && !r.deviations.is_empty() {
         s.push_str(" Deviations are declared; see *Changes since the lock*.");
     }
