@@ -624,6 +624,11 @@ fn status_lines_follow_the_lock_state() {
         date: "2026-05-01".into(),
         change: "alpha".into(),
         reason: "the funder asked".into(),
+        field: None,
+        planned: None,
+        when: None,
+        effect: None,
+        severity: None,
     }];
     let md = render_report(&r, None).unwrap().report_md;
     assert!(md.contains("**Ran with deviations from the lock** (locked 2026-04-02)"));
@@ -636,6 +641,71 @@ fn status_lines_follow_the_lock_state() {
     r.lock_record = None;
     let md = render_report(&r, None).unwrap().report_md;
     assert!(md.contains("**Not preregistered**"));
+}
+
+/// The part of a report from `## title` to the next `## `.
+fn section<'a>(md: &'a str, title: &str) -> &'a str {
+    let start = md
+        .find(title)
+        .unwrap_or_else(|| panic!("no {title} in {md}"));
+    let rest = &md[start..];
+    let end = rest[3..].find("\n## ").map_or(rest.len(), |e| e + 4);
+    &rest[..end]
+}
+
+#[test]
+fn snapshot_changes_table_and_not_computed() {
+    let mut r = scenario();
+    r.lock = LockState::Deviates;
+    r.changes = vec![
+        attest::plan::canonical::FieldChange {
+            field: "alpha".into(),
+            locked: "0.05".into(),
+            current: "0.01".into(),
+        },
+        attest::plan::canonical::FieldChange {
+            field: "hypotheses[H1].method".into(),
+            locked: "welch-t".into(),
+            current: "student-t".into(),
+        },
+    ];
+    r.deviations = vec![
+        Deviation {
+            date: "2026-05-01".into(),
+            change: "a stricter level".into(),
+            reason: "the funder asked".into(),
+            field: Some("alpha".into()),
+            planned: None,
+            when: Some(attest::plan::Timing::BeforeAccess),
+            effect: Some("fewer findings pass".into()),
+            severity: Some(attest::plan::Severity::Stronger),
+        },
+        Deviation {
+            date: "2026-05-02".into(),
+            change: "recruited from two schools".into(),
+            reason: "one school closed".into(),
+            field: None,
+            planned: Some("one school".into()),
+            when: Some(attest::plan::Timing::BeforeCollection),
+            effect: None,
+            severity: None,
+        },
+    ];
+    if let Some(l) = r.lock_record.as_mut() {
+        l.data_existed = true;
+    }
+    let h2 = r.hypotheses.pop().unwrap();
+    r.not_computed = vec![attest::results::NotComputed {
+        id: h2.id.clone(),
+        claim: h2.claim.clone(),
+        reason: "welch-t cannot be computed: every value within each group is the same".into(),
+        rows: h2.rows.clone(),
+    }];
+    let md = render_report(&r, None).unwrap().report_md;
+    insta::assert_snapshot!("changes_table", section(&md, "## Changes since the lock"));
+    insta::assert_snapshot!("not_computed", section(&md, "## Not computed"));
+    // "before-collection" while the data existed at the lock is flagged.
+    assert!(md.contains("CONTRADICTED by the record"), "{md}");
 }
 
 #[test]
