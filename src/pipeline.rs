@@ -87,6 +87,11 @@ pub(crate) fn lock(
             .help("a lock is never overwritten; to change the plan, edit it and declare a [[deviation]], or start a new analysis file"));
     }
     let data_path = plan_dir(path).join(&file.plan.data.path);
+    if data_path.exists() {
+        // Columns and levels that are not there are found now, from the
+        // header and the labels alone, not after the lock at `run`.
+        data::check_labels(&file.plan, &plan_dir(path))?;
+    }
     let sealed = LockFile::seal(&file, &data_path)?;
     let docs = plan_documents(&sealed, templates)?;
     let out_dir = out

@@ -310,3 +310,53 @@ fn a_deviation_is_tabled_with_the_locked_value_and_a_contradicted_timing_is_flag
     assert_eq!(r["deviations"][0]["when"], "before-access");
     assert_eq!(r["lock_record"]["rehearsals"].as_array().unwrap().len(), 2);
 }
+
+#[test]
+fn lock_reads_the_header_and_labels_but_never_an_outcome_value() {
+    let c = Case::new();
+    let head = "attest = 1\ntitle = \"Lock\"\nauthors = [\"A. Researcher\"]\n\n[data]\npath = \"data.csv\"\n\n";
+    c.write(
+        "data.csv",
+        "id,group,score\n1,a,12\n2,b,10\n3,a,11\n4,b,9\n",
+    );
+    // An outcome cell no number reader accepts: lock must not read it.
+    c.write(
+        "bad.csv",
+        "id,group,score\n1,a,12\n2,b,not-a-number\n3,a,11\n4,b,9\n",
+    );
+    c.write(
+        "wrong-level.toml",
+        &format!("{head}{}", independent("H1", ["A", "b"])),
+    );
+    let err = c.attest(&["lock", "wrong-level.toml"]).code(1);
+    let lock_msg = String::from_utf8_lossy(&err.get_output().stderr).into_owned();
+    let run = c.attest(&["run", "--unlocked", "wrong-level.toml"]).code(1);
+    let run_msg = String::from_utf8_lossy(&run.get_output().stderr).into_owned();
+    assert_eq!(lock_msg, run_msg, "lock and run say the same");
+    assert!(
+        lock_msg.contains("no rows with the level \"A\""),
+        "{lock_msg}"
+    );
+    assert!(!c.exists("wrong-level.lock"));
+    c.write(
+        "misspelt.toml",
+        &format!(
+            "{head}{}",
+            independent("H1", ["a", "b"]).replace("\"score\"", "\"scroe\"")
+        ),
+    );
+    let err = c.attest(&["lock", "misspelt.toml"]).code(1);
+    let msg = String::from_utf8_lossy(&err.get_output().stderr).into_owned();
+    assert!(
+        msg.contains("the plan uses column \"scroe\", which is not in the header"),
+        "{msg}"
+    );
+    // Columns and levels right: the lock is written although an outcome
+    // cell is unreadable, because lock never reads one (run will refuse it).
+    c.write(
+        "fine.toml",
+        &format!("{head}{}", independent("H1", ["a", "b"])).replace("data.csv", "bad.csv"),
+    );
+    c.attest(&["lock", "fine.toml"]).success();
+    assert!(c.exists("fine.lock"));
+}
