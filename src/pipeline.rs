@@ -186,26 +186,92 @@ fn lock_state(
 }
 
 /// Runs every hypothesis of an analysis file and builds the results
-/// model, writing nothing.
+/// model, writing nothing. When a change since the lock alters the
+/// analysis, the plan exactly as locked runs too (`as_locked`).
 pub(crate) fn compute(path: &Path, unlocked: bool) -> Result<Results> {
     let file = validate::load(path)?;
     let (state, record, changes) = lock_state(&file, unlocked)?;
     let dir = plan_dir(path);
     let ds = data::load(&file.plan, &dir)?;
-    let plan = &file.plan;
-    let (hyps, not_computed, correction_applied) = analyse_all(plan, &ds, None)?;
+    let outcome = analyse_all(&file.plan, &ds, None)?;
     let analysis_file = lock::file_name(path);
     let command = if unlocked {
         format!("attest run --unlocked {analysis_file}")
     } else {
         format!("attest run {analysis_file}")
     };
-    Ok(Results {
+    let as_locked = if changes.iter().any(|c| changes_analysis(&c.field)) {
+        let (lock, _) = LockFile::read(&lock::lock_path(path))?;
+        Some(Box::new(run_as_locked(&lock.plan, &dir)))
+    } else {
+        None
+    };
+    let mut r = results_of(&file, (state, record, changes), &ds, &dir, outcome, command);
+    r.as_locked = as_locked;
+    Ok(r)
+}
+
+/// Whether a change of this canonical field changes the analysis (rather
+/// than only the words around it: title, authors, summary, a claim, a
+/// label or a unit).
+fn changes_analysis(field: &str) -> bool {
+    let root = field.split(['.', '[']).next().unwrap_or(field);
+    let last = field.rsplit('.').next().unwrap_or(field);
+    !(["title", "authors", "summary"].contains(&root)
+        || ["claim", "label", "units"].contains(&last))
+}
+
+/// The plan exactly as locked, run on the data its own settings read.
+/// A locked plan that cannot run at all (its column was renamed since,
+/// say) is recorded with the reason instead of failing the run.
+fn run_as_locked(plan: &crate::plan::Plan, dir: &Path) -> LockedRun {
+    let ran = data::load(plan, dir).and_then(|ds| analyse_all(plan, &ds, None));
+    match ran {
+        Ok((hypotheses, not_computed, correction_applied)) => LockedRun {
+            plan_sha256: plan_hash(plan),
+            hypotheses,
+            not_computed,
+            correction_applied,
+            not_run: None,
+        },
+        Err(f) => LockedRun {
+            plan_sha256: plan_hash(plan),
+            hypotheses: Vec::new(),
+            not_computed: Vec::new(),
+            correction_applied: Correction::None,
+            not_run: Some(f.what),
+        },
+    }
+}
+
+/// What [`analyse_all`] returns: the results, the hypotheses not
+/// computed, and the correction that applied.
+type Analysed = (Vec<HypothesisResult>, Vec<NotComputed>, Correction);
+
+/// The lock state, the lock's record and the changes since the lock.
+type LockView = (
+    LockState,
+    Option<LockRecord>,
+    Vec<crate::plan::canonical::FieldChange>,
+);
+
+/// The results model of a plan run on a loaded dataset.
+fn results_of(
+    file: &AnalysisFile,
+    (lock, lock_record, changes): LockView,
+    ds: &data::Dataset,
+    dir: &Path,
+    (hypotheses, not_computed, correction_applied): Analysed,
+    command: String,
+) -> Results {
+    let plan = &file.plan;
+    Results {
         tool: "attest".into(),
+        rehearsal: None,
         version: env!("CARGO_PKG_VERSION").into(),
         plan_sha256: plan_hash(plan),
-        lock: state,
-        lock_record: record,
+        lock,
+        lock_record,
         changes,
         deviations: file.deviations.clone(),
         plan: plan.clone(),
@@ -213,16 +279,15 @@ pub(crate) fn compute(path: &Path, unlocked: bool) -> Result<Results> {
             path: plan.data.path.clone(),
             sha256: ds.sha256.clone(),
             rows: ds.rows,
-            outside_plan_folder: outside(&dir, &ds.path),
+            outside_plan_folder: outside(dir, &ds.path),
         },
-        hypotheses: hyps,
+        hypotheses,
         not_computed,
         as_locked: None,
-        rehearsal: None,
         correction_applied,
         command,
-        analysis_file,
-    })
+        analysis_file: lock::file_name(&file.path),
+    }
 }
 
 /// What `rehearse` produced.
@@ -263,36 +328,15 @@ pub(crate) fn rehearse(
     let ds = data::load(&file.plan, &dir)?;
     let plan = &file.plan;
     let seed = seed.unwrap_or(plan.seed);
-    let (hyps, not_computed, correction_applied) = analyse_all(plan, &ds, Some(seed))?;
+    let outcome = analyse_all(plan, &ds, Some(seed))?;
     let designs: Vec<_> = plan.hypotheses.iter().map(|h| h.design).collect();
-    let analysis_file = lock::file_name(path);
-    let results = Results {
-        tool: "attest".into(),
-        rehearsal: Some(Rehearsal {
-            notice: crate::rehearsal::NOTICE.into(),
-            seed,
-            blinding: crate::rehearsal::blinding_words(&designs),
-        }),
-        version: env!("CARGO_PKG_VERSION").into(),
-        plan_sha256: plan_hash(plan),
-        lock: state,
-        lock_record: record,
-        changes,
-        deviations: file.deviations.clone(),
-        plan: plan.clone(),
-        data: DataRecord {
-            path: plan.data.path.clone(),
-            sha256: ds.sha256.clone(),
-            rows: ds.rows,
-            outside_plan_folder: outside(&dir, &ds.path),
-        },
-        hypotheses: hyps,
-        not_computed,
-        as_locked: None,
-        correction_applied,
-        command: format!("attest rehearse --seed {seed} {analysis_file}"),
-        analysis_file,
-    };
+    let command = format!("attest rehearse --seed {seed} {}", lock::file_name(path));
+    let mut results = results_of(&file, (state, record, changes), &ds, &dir, outcome, command);
+    results.rehearsal = Some(Rehearsal {
+        notice: crate::rehearsal::NOTICE.into(),
+        seed,
+        blinding: crate::rehearsal::blinding_words(&designs),
+    });
     let files = crate::rehearsal::stamp(render::render_run(&results, templates)?);
     let out_dir = out
         .map(Path::to_path_buf)
@@ -335,7 +379,7 @@ pub(crate) fn analyse_all(
     plan: &crate::plan::Plan,
     ds: &data::Dataset,
     blind: Option<u64>,
-) -> Result<(Vec<HypothesisResult>, Vec<NotComputed>, Correction)> {
+) -> Result<Analysed> {
     let outcomes = plan
         .hypotheses
         .par_iter()

@@ -116,6 +116,10 @@ pub struct LockedRun {
     pub not_computed: Vec<NotComputed>,
     /// The correction that applied to the locked plan.
     pub correction_applied: Correction,
+    /// Why the locked plan could not run at all on these data (absent
+    /// when it ran).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub not_run: Option<String>,
 }
 
 /// Relation between the plan that ran and the lock.

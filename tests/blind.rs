@@ -306,7 +306,16 @@ fn a_deviation_is_tabled_with_the_locked_value_and_a_contradicted_timing_is_flag
         report.contains("The record contradicts the timing one deviation claims"),
         "{report}"
     );
+    // Both analyses, side by side.
+    assert!(report.contains("## As locked and as run"), "{report}");
+    assert!(
+        report.contains("**H1**. As locked: Welch's t-test")
+            && report.contains("As run: Student's t-test"),
+        "{report}"
+    );
     let r: serde_json::Value = serde_json::from_str(&c.read("out/dev/results.json")).unwrap();
+    assert_eq!(r["as_locked"]["hypotheses"][0]["method"], "welch-t");
+    assert_eq!(r["hypotheses"][0]["method"], "student-t");
     assert_eq!(r["deviations"][0]["when"], "before-access");
     assert_eq!(r["lock_record"]["rehearsals"].as_array().unwrap().len(), 2);
 }
@@ -359,4 +368,49 @@ fn lock_reads_the_header_and_labels_but_never_an_outcome_value() {
     );
     c.attest(&["lock", "fine.toml"]).success();
     assert!(c.exists("fine.lock"));
+}
+
+#[test]
+fn a_stricter_alpha_after_the_lock_shows_the_conclusion_changed() {
+    let c = Case::new();
+    let mut rows = spread("a", 12.0);
+    rows.extend(spread("b", 10.0));
+    c.write("data.csv", &groups_csv(&rows));
+    let head = "attest = 1\ntitle = \"Alpha\"\nauthors = [\"A. Researcher\"]\n\n[data]\npath = \"data.csv\"\n\n";
+    c.write(
+        "alpha.toml",
+        &format!("{head}{}", independent("H1", ["a", "b"])),
+    );
+    c.attest(&["lock", "alpha.toml"]).success();
+    c.attest(&["run", "alpha.toml"]).success();
+    let r: serde_json::Value = serde_json::from_str(&c.read("out/alpha/results.json")).unwrap();
+    let p = r["hypotheses"][0]["p"].as_f64().unwrap();
+    assert!(p < 0.05 && p > 0.0001, "the data give p = {p}");
+    assert!(
+        r.get("as_locked").is_none(),
+        "as locked: no second analysis"
+    );
+    c.write(
+        "alpha.toml",
+        &format!(
+            "{}{}",
+            head.replace("authors", "alpha = 0.0001\nauthors"),
+            independent("H1", ["a", "b"])
+        ),
+    );
+    c.attest(&["run", "alpha.toml"]).success();
+    let report = c.read("out/alpha/report.md");
+    assert!(report.contains("**The conclusion changed**: as locked the claim is supported, as run it is not supported"), "{report}");
+    // A change of wording only runs one analysis.
+    c.write(
+        "alpha.toml",
+        &format!(
+            "{}{}",
+            head.replace("Alpha", "Alpha, retitled"),
+            independent("H1", ["a", "b"])
+        ),
+    );
+    c.attest(&["run", "alpha.toml"]).success();
+    let r: serde_json::Value = serde_json::from_str(&c.read("out/alpha/results.json")).unwrap();
+    assert!(r.get("as_locked").is_none());
 }

@@ -175,3 +175,91 @@ fn iso_day(s: &str) -> Option<String> {
     });
     ok.then(|| t.to_string())
 }
+
+/// Both analyses side by side, one paragraph per hypothesis, when a
+/// deviation changed the analysis: "As locked: … / As run: …" and whether
+/// the conclusion changed. Empty when the plan ran as locked (or only its
+/// wording changed).
+pub(crate) fn both(r: &Results) -> Vec<String> {
+    let Some(l) = &r.as_locked else {
+        return Vec::new();
+    };
+    if let Some(why) = &l.not_run {
+        return vec![format!(
+            "The plan as locked could not run on these data, so only the plan as run is reported: {}",
+            escape(why)
+        )];
+    }
+    let mut ids: Vec<&str> = r.plan.hypotheses.iter().map(|h| h.id.as_str()).collect();
+    for h in &l.hypotheses {
+        if !ids.contains(&h.id.as_str()) {
+            ids.push(&h.id);
+        }
+    }
+    for n in &l.not_computed {
+        if !ids.contains(&n.id.as_str()) {
+            ids.push(&n.id);
+        }
+    }
+    ids.into_iter()
+        .map(|id| {
+            let locked = side(id, &l.hypotheses, &l.not_computed, l.correction_applied);
+            let run = side(id, &r.hypotheses, &r.not_computed, r.correction_applied);
+            let verdict_of = |s: &Side| match s {
+                Side::Ran(_, v) => Some(*v),
+                _ => None,
+            };
+            let same = match (verdict_of(&locked), verdict_of(&run)) {
+                (Some(a), Some(b)) if a == b => "The conclusion is the same either way.".to_string(),
+                (Some(a), Some(b)) => format!(
+                    "**The conclusion changed**: as locked the claim is {a}, as run it is {b}; the locked analysis is the preregistered one."
+                ),
+                _ => "Only one of the two analyses reaches a conclusion, so they cannot be compared.".into(),
+            };
+            format!(
+                "**{}**. As locked: {}. As run: {}. {same}",
+                escape(id),
+                locked.words(),
+                run.words()
+            )
+        })
+        .collect()
+}
+
+enum Side {
+    Ran(String, &'static str),
+    NotComputed(String),
+    Absent,
+}
+
+impl Side {
+    fn words(&self) -> String {
+        match self {
+            Side::Ran(w, v) => format!("{w}, {v}"),
+            Side::NotComputed(why) => format!("not computed ({})", escape(why)),
+            Side::Absent => "not in this plan".into(),
+        }
+    }
+}
+
+fn side(
+    id: &str,
+    hyps: &[crate::results::HypothesisResult],
+    not_computed: &[crate::results::NotComputed],
+    correction: crate::results::Correction,
+) -> Side {
+    if let Some(h) = hyps.iter().find(|h| h.id == id) {
+        return Side::Ran(
+            format!(
+                "{}, {}",
+                super::sentence::method_name(h.method),
+                super::sentence::p_of(h, correction)
+            ),
+            super::verdict(h),
+        );
+    }
+    match not_computed.iter().find(|n| n.id == id) {
+        Some(n) => Side::NotComputed(n.reason.clone()),
+        None => Side::Absent,
+    }
+}

@@ -138,6 +138,7 @@ pub(crate) struct ReportView {
     blinding: Vec<String>,
     not_computed: Vec<Vec<String>>,
     changes_table: Vec<Vec<String>>,
+    both: Vec<Value>,
     changes: Vec<Vec<String>>,
     deviations: Vec<Vec<String>>,
     lock_state: LockState,
@@ -182,6 +183,7 @@ pub(crate) fn report(r: &Results) -> ReportView {
         blinding: deviations::blinding(r),
         not_computed: deviations::not_computed(r),
         changes_table: deviations::changes_table(r),
+        both: deviations::both(r).into_iter().map(md).collect(),
         changes: r
             .changes
             .iter()
@@ -238,8 +240,9 @@ fn status(r: &Results) -> String {
     let mut s = match r.lock {
         LockState::AsLocked => format!("**Ran as locked**{locked}."),
         LockState::Deviates => format!(
-            "**Ran with deviations from the lock**{locked}: {} differ from the locked plan; see *Changes since the lock*.",
-            if r.changes.len() == 1 { "1 field".to_string() } else { format!("{} fields", r.changes.len()) }
+            "**Ran with deviations from the lock**{locked}: {} differ from the locked plan; see *Changes since the lock*{}.",
+            if r.changes.len() == 1 { "1 field".to_string() } else { format!("{} fields", r.changes.len()) },
+            if r.as_locked.is_some() { ", and *As locked and as run* for both analyses" } else { "" }
         ),
         LockState::Unlocked => "**Not preregistered**: this analysis ran without a lock, so nothing shows it was planned before the data were seen.".into(),
     };
