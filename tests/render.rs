@@ -701,8 +701,25 @@ fn snapshot_changes_table_and_not_computed() {
         reason: "welch-t cannot be computed: every value within each group is the same".into(),
         rows: h2.rows.clone(),
     }];
+    let mut locked_h1 = r.hypotheses[0].clone();
+    locked_h1.method = Method::WelchT;
+    locked_h1.decision = match locked_h1.decision {
+        Decision::Reject => Decision::Retain,
+        Decision::Retain => Decision::Reject,
+    };
+    r.as_locked = Some(Box::new(LockedRun {
+        plan_sha256: "0".repeat(64),
+        hypotheses: vec![locked_h1, h2.clone()],
+        not_computed: vec![],
+        correction_applied: Correction::Holm,
+        not_run: None,
+    }));
     let md = render_report(&r, None).unwrap().report_md;
     insta::assert_snapshot!("changes_table", section(&md, "## Changes since the lock"));
+    insta::assert_snapshot!(
+        "as_locked_and_as_run",
+        section(&md, "## As locked and as run")
+    );
     insta::assert_snapshot!("not_computed", section(&md, "## Not computed"));
     // "before-collection" while the data existed at the lock is flagged.
     assert!(md.contains("CONTRADICTED by the record"), "{md}");
