@@ -414,3 +414,65 @@ fn a_stricter_alpha_after_the_lock_shows_the_conclusion_changed() {
     let r: serde_json::Value = serde_json::from_str(&c.read("out/alpha/results.json")).unwrap();
     assert!(r.get("as_locked").is_none());
 }
+
+#[test]
+fn every_slip_in_the_data_file_stops_the_rehearsal_as_it_would_stop_run() {
+    // Cases of the bad-input catalogue: a wrong delimiter, the wrong
+    // worksheet, a misspelt column, a level the file does not have, a
+    // cell that is not a number, an exclusion that empties a group.
+    let folders = [
+        "data-wrong-delimiter",
+        "data-xlsx-on-second-sheet",
+        "data-unknown-column",
+        "data-missing-level",
+        "data-text-in-numeric-column",
+        "data-all-rows-excluded",
+    ];
+    let check = |c: &Case, what: &str| {
+        let run = c.attest(&["run", "--unlocked", "plan.toml"]).code(1);
+        let run_err = String::from_utf8_lossy(&run.get_output().stderr).into_owned();
+        let rehearsal = c.attest(&["rehearse", "plan.toml"]).code(1);
+        let err = String::from_utf8_lossy(&rehearsal.get_output().stderr).into_owned();
+        assert_eq!(err, run_err, "{what}: rehearse and run say the same");
+        assert!(err.starts_with("error: "), "{what}: {err}");
+        assert!(!c.exists("out"), "{what}: nothing is shown");
+    };
+    for f in folders {
+        let c = Case::new();
+        common::copy_dir(&common::root().join("tests/bad_inputs").join(f), c.path());
+        check(&c, f);
+    }
+    let plan = |data: &str, extra: &str| {
+        format!(
+            "attest = 1\ntitle = \"Slips\"\nauthors = [\"A. Researcher\"]\n\n[data]\npath = \"data.csv\"\n{extra}\n{}",
+            independent("H1", ["a", "b"])
+        )
+        .replace("data.csv", data)
+    };
+    // A decimal comma the plan does not declare.
+    let c = Case::new();
+    c.write(
+        "data.csv",
+        "id;group;score\n1;a;12,5\n2;b;10,5\n3;a;11,5\n4;b;9,5\n",
+    );
+    c.write("plan.toml", &plan("data.csv", "delimiter = \";\""));
+    check(&c, "decimal comma");
+    // A missing-value code the plan does not declare.
+    let c = Case::new();
+    c.write(
+        "data.csv",
+        "id,group,score\n1,a,12\n2,b,not recorded\n3,a,11\n4,b,9\n5,a,13\n6,b,8\n",
+    );
+    c.write("plan.toml", &plan("data.csv", ""));
+    check(&c, "undeclared missing-value code");
+    // A level in the wrong case is caught at lock already, from the labels.
+    let c = Case::new();
+    c.write(
+        "data.csv",
+        "id,group,score\n1,A,12\n2,b,10\n3,A,11\n4,b,9\n",
+    );
+    c.write("plan.toml", &plan("data.csv", ""));
+    check(&c, "level in the wrong case");
+    c.attest(&["lock", "plan.toml"]).code(1);
+    assert!(!c.exists("plan.lock"));
+}
