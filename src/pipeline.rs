@@ -202,7 +202,16 @@ pub(crate) fn compute(path: &Path, unlocked: bool) -> Result<Results> {
     };
     let as_locked = if changes.iter().any(|c| changes_analysis(&c.field)) {
         let (lock, _) = LockFile::read(&lock::lock_path(path))?;
-        Some(Box::new(run_as_locked(&lock.plan, &dir)))
+        // The file is read again only when the locked plan reads it
+        // differently (another path, format, rule or column).
+        let same_rows = lock.plan.data == file.plan.data
+            && lock.plan.exclude == file.plan.exclude
+            && data::used_columns(&lock.plan) == data::used_columns(&file.plan);
+        Some(Box::new(run_as_locked(
+            &lock.plan,
+            &dir,
+            same_rows.then_some(&ds),
+        )))
     } else {
         None
     };
@@ -224,8 +233,11 @@ fn changes_analysis(field: &str) -> bool {
 /// The plan exactly as locked, run on the data its own settings read.
 /// A locked plan that cannot run at all (its column was renamed since,
 /// say) is recorded with the reason instead of failing the run.
-fn run_as_locked(plan: &crate::plan::Plan, dir: &Path) -> LockedRun {
-    let ran = data::load(plan, dir).and_then(|ds| analyse_all(plan, &ds, None));
+fn run_as_locked(plan: &crate::plan::Plan, dir: &Path, ds: Option<&data::Dataset>) -> LockedRun {
+    let ran = match ds {
+        Some(ds) => analyse_all(plan, ds, None),
+        None => data::load(plan, dir).and_then(|ds| analyse_all(plan, &ds, None)),
+    };
     match ran {
         Ok((hypotheses, not_computed, correction_applied)) => LockedRun {
             plan_sha256: plan_hash(plan),

@@ -476,3 +476,38 @@ fn every_slip_in_the_data_file_stops_the_rehearsal_as_it_would_stop_run() {
     c.attest(&["lock", "plan.toml"]).code(1);
     assert!(!c.exists("plan.lock"));
 }
+
+#[test]
+fn a_locked_plan_on_another_outcome_runs_on_its_own_column_and_the_report_verifies() {
+    let c = Case::new();
+    let mut csv = String::from("id,group,score,other\n");
+    for (i, (g, v)) in spread("a", 12.0)
+        .into_iter()
+        .chain(spread("b", 10.0))
+        .enumerate()
+    {
+        csv.push_str(&format!("{},{g},{v},{}\n", i + 1, v * 2.0));
+    }
+    c.write("data.csv", &csv);
+    let head = "attest = 1\ntitle = \"Outcome\"\nauthors = [\"A. Researcher\"]\n\n[data]\npath = \"data.csv\"\n\n";
+    c.write(
+        "o.toml",
+        &format!("{head}{}", independent("H1", ["a", "b"])),
+    );
+    c.attest(&["lock", "o.toml"]).success();
+    c.write(
+        "o.toml",
+        &format!(
+            "{head}{}",
+            independent("H1", ["a", "b"]).replace("\"score\"", "\"other\"")
+        ),
+    );
+    c.attest(&["run", "o.toml"]).success();
+    let r: serde_json::Value = serde_json::from_str(&c.read("out/o/results.json")).unwrap();
+    let locked = r["as_locked"]["hypotheses"][0]["estimate"]["value"]
+        .as_f64()
+        .unwrap();
+    let run = r["hypotheses"][0]["estimate"]["value"].as_f64().unwrap();
+    assert!((run - 2.0 * locked).abs() < 1e-9, "{locked} {run}");
+    c.attest(&["verify", "out/o"]).success();
+}
