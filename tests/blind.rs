@@ -511,3 +511,32 @@ fn a_locked_plan_on_another_outcome_runs_on_its_own_column_and_the_report_verifi
     assert!((run - 2.0 * locked).abs() < 1e-9, "{locked} {run}");
     c.attest(&["verify", "out/o"]).success();
 }
+
+#[test]
+fn a_hypothesis_not_computed_leaves_the_other_names_as_the_plan_gives_them() {
+    let c = Case::new();
+    let mut csv = String::from("unit,group,score,flat\n");
+    for (i, (g, v)) in spread("a", 12.0)
+        .into_iter()
+        .chain(spread("b", 10.0))
+        .enumerate()
+    {
+        csv.push_str(&format!("{i},{g},{v},{}\n", if g == "a" { 5 } else { 7 }));
+    }
+    c.write("data.csv", &csv);
+    let h = |id: &str, outcome: &str| {
+        independent(id, ["a", "b"]).replace("\"score\"", &format!("\"{outcome}\""))
+    };
+    c.write(
+        "n.toml",
+        &format!(
+            "attest = 1\ntitle = \"N\"\nauthors = [\"A. Researcher\"]\n\n[data]\npath = \"data.csv\"\n\n{}{}",
+            h("H1", "score"),
+            h("H-1", "flat")
+        ),
+    );
+    c.attest(&["run", "--unlocked", "n.toml"]).code(5);
+    let values = c.read("out/n/values.json");
+    assert!(values.contains("\"NHOneAtOneStat\""), "{values}");
+    assert!(!values.contains("HOneAtTwo"), "{values}");
+}

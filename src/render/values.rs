@@ -322,18 +322,18 @@ pub(crate) fn from_results(r: &Results) -> Result<Values> {
         .unwrap_or(&r.analysis_file);
     let correction = r.correction_applied;
     let conf = r.plan.confidence;
-    let named: Vec<Named> = r
-        .hypotheses
-        .iter()
-        .map(|h| Named {
-            id: &h.id,
-            sets: h.groups.iter().map(|g| g.label.clone()).collect(),
-            equivalence: h.equivalence.is_some(),
-        })
-        .collect();
+    // Names come from the whole plan, so a hypothesis that could not be
+    // computed leaves every other name as it would be.
+    let named = plan_named(&r.plan);
     let mut v = Values::default();
     for slot in slots(stem, &named)? {
-        let h = &r.hypotheses[slot.hypothesis];
+        let id = &r.plan.hypotheses[slot.hypothesis].id;
+        let Some(h) = r.hypotheses.iter().find(|h| &h.id == id) else {
+            continue;
+        };
+        if slot.set.is_some_and(|k| k >= h.groups.len()) {
+            continue;
+        }
         let g = slot.set.map(|k| &h.groups[k]);
         let text = match (slot.figure, g) {
             ("Stat", _) => Some(bare_statistic(h)),
