@@ -244,6 +244,7 @@ fn status(r: &Results) -> String {
             if r.changes.len() == 1 { "1 field".to_string() } else { format!("{} fields", r.changes.len()) },
             if r.as_locked.is_some() { ", and *As locked and as run* for both analyses" } else { "" }
         ),
+        LockState::Unlocked if r.rehearsal.is_some() => "**Not locked yet**: a rehearsal comes before the lock; lock the plan once the rehearsal runs clean.".into(),
         LockState::Unlocked => "**Not preregistered**: this analysis ran without a lock, so nothing shows it was planned before the data were seen.".into(),
     };
     if let Some(l) = &r.lock_record {
