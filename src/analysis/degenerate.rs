@@ -12,10 +12,31 @@ use crate::stats::StatsError;
 pub(crate) fn why(
     e: &StatsError,
     design: Design,
+    labels: &[String; 2],
     first: &[f64],
     second: &[f64],
     diffs: &[f64],
 ) -> String {
+    if let StatsError::TooFew { got: 0, .. } = e {
+        let empty: Vec<&str> = match design {
+            Design::Independent => [(first, &labels[0]), (second, &labels[1])]
+                .iter()
+                .filter(|(x, _)| x.is_empty())
+                .map(|(_, l)| l.as_str())
+                .collect(),
+            _ => Vec::new(),
+        };
+        return match empty.as_slice() {
+            [one] => format!(
+                "no value of \"{}\" is left after missing values and exclusions ({e})",
+                crate::error::clean(one)
+            ),
+            [_, _] => format!(
+                "no value of either group is left after missing values and exclusions ({e})"
+            ),
+            _ => format!("no value is left after missing values and exclusions ({e})"),
+        };
+    }
     let constant = |x: &[f64]| x.first().map(|a| x.iter().all(|b| b == a)).unwrap_or(false);
     match (e, design) {
         (StatsError::ZeroVariance, Design::Independent) => {
@@ -50,12 +71,20 @@ mod tests {
     #[test]
     fn identical_only_when_identical() {
         let z = StatsError::ZeroVariance;
-        let same = why(&z, Design::Independent, &[2.0, 2.0], &[2.0, 2.0], &[]);
+        let l = ["a".to_string(), "b".to_string()];
+        let same = why(&z, Design::Independent, &l, &[2.0, 2.0], &[2.0, 2.0], &[]);
         assert_eq!(same, "all values are identical, so the spread is zero");
-        let apart = why(&z, Design::Independent, &[2.0, 2.0], &[3.0, 3.0], &[]);
+        let apart = why(&z, Design::Independent, &l, &[2.0, 2.0], &[3.0, 3.0], &[]);
         assert!(!apart.contains("identical"), "{apart}");
         assert!(apart.contains("within each group"), "{apart}");
-        let shifted = why(&z, Design::Paired, &[3.0, 4.0], &[1.0, 2.0], &[2.0, 2.0]);
+        let shifted = why(
+            &z,
+            Design::Paired,
+            &l,
+            &[3.0, 4.0],
+            &[1.0, 2.0],
+            &[2.0, 2.0],
+        );
         assert!(
             shifted.contains("every paired difference is the same"),
             "{shifted}"
@@ -63,10 +92,20 @@ mod tests {
         let other = why(
             &StatsError::TooFew { needed: 2, got: 1 },
             Design::OneSample,
+            &l,
             &[1.0],
             &[],
             &[1.0],
         );
         assert_eq!(other, "needs at least 2 values, has 1");
+        let empty = why(
+            &StatsError::TooFew { needed: 1, got: 0 },
+            Design::Independent,
+            &l,
+            &[1.0],
+            &[],
+            &[],
+        );
+        assert_eq!(empty, "no value of \"b\" is left after missing values and exclusions (needs at least 1 value, has 0)");
     }
 }

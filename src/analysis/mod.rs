@@ -64,7 +64,7 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
     let mut diffs = diffs;
     sort_values(&mut diffs);
     let fail = |what: &str, e: StatsError| -> Failure {
-        let why = degenerate::why(&e, h.design, &first, &second, &diffs);
+        let why = degenerate::why(&e, h.design, &labels, &first, &second, &diffs);
         Failure::input(format!("hypothesis {}: {what}: {why}", h.id)).help(
             "check the row counts in the data (missing values and exclusions reduce them), or revise the plan and record a deviation",
         )
