@@ -12,6 +12,7 @@
 //! | 2 | verification failed: something did not reproduce or changed |
 //! | 3 | an internal error or an I/O failure of the machine (disk full, …) |
 //! | 4 | `verify` cannot confirm an outside record the report claims (a git commit that is gone); nothing was found to differ |
+//! | 5 | `run` or `rehearse` wrote its outputs, but at least one hypothesis could not be computed (its values leave the test undefined); the report says which and why |
 
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -29,6 +30,10 @@ pub enum Kind {
     /// the report claims, such as its git commit (exit 4).
     Unconfirmed,
 }
+
+/// Exit code of a `run` or `rehearse` that wrote its outputs while at
+/// least one hypothesis could not be computed.
+pub(crate) const NOT_COMPUTED: i32 = 5;
 
 impl Kind {
     /// The process exit code for this kind.

@@ -14,6 +14,7 @@ pub mod lock;
 pub(crate) mod output;
 pub(crate) mod pipeline;
 pub mod plan;
+pub(crate) mod rehearsal;
 pub mod render;
 pub mod results;
 pub mod seal;

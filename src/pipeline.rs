@@ -52,6 +52,8 @@ pub(crate) fn check(path: &Path) -> Result<AnalysisFile> {
     let file = validate::load(path)?;
     // A sample-size plan that cannot be met is a plan error, found now.
     planned_sizes(&file.plan)?;
+    // So are value names that cannot be told apart.
+    render::values::check_plan(&file.plan, &lock::file_name(path)).map_err(|e| e.in_file(path))?;
     Ok(file)
 }
 
@@ -78,13 +80,18 @@ pub(crate) fn lock(
     templates: Option<&Path>,
     force: bool,
 ) -> Result<LockOutcome> {
-    let file = validate::load(path)?;
+    let file = check(path)?;
     let lock_path = lock::lock_path(path);
     if lock_path.exists() {
         return Err(Failure::input(format!("{} is already locked ({} exists)", path.display(), lock_path.display()))
             .help("a lock is never overwritten; to change the plan, edit it and declare a [[deviation]], or start a new analysis file"));
     }
     let data_path = plan_dir(path).join(&file.plan.data.path);
+    if data_path.exists() {
+        // Columns and levels that are not there are found now, from the
+        // header and the labels alone, not after the lock at `run`.
+        data::check_labels(&file.plan, &plan_dir(path))?;
+    }
     let sealed = LockFile::seal(&file, &data_path)?;
     let docs = plan_documents(&sealed, templates)?;
     let out_dir = out
@@ -160,6 +167,7 @@ fn lock_state(
         data_existed: lock.data.existed,
         data_sha256: lock.data.sha256.clone(),
         intact: lock.intact(),
+        rehearsals: crate::rehearsal::records(&file.path)?,
         witness: crate::witness::witness(
             &lock_path,
             &bytes,
@@ -178,34 +186,104 @@ fn lock_state(
 }
 
 /// Runs every hypothesis of an analysis file and builds the results
-/// model, writing nothing.
+/// model, writing nothing. When a change since the lock alters the
+/// analysis, the plan exactly as locked runs too (`as_locked`).
 pub(crate) fn compute(path: &Path, unlocked: bool) -> Result<Results> {
     let file = validate::load(path)?;
     let (state, record, changes) = lock_state(&file, unlocked)?;
     let dir = plan_dir(path);
     let ds = data::load(&file.plan, &dir)?;
-    let plan = &file.plan;
-    let mut hyps = plan
-        .hypotheses
-        .par_iter()
-        .map(|h| {
-            let sel = data::select(&ds, plan, h)?;
-            analysis::analyse(plan, h, sel)
-        })
-        .collect::<Result<Vec<_>>>()?;
-    let correction_applied = analysis::adjust_all(plan, &mut hyps);
+    let outcome = analyse_all(&file.plan, &ds, None)?;
     let analysis_file = lock::file_name(path);
     let command = if unlocked {
         format!("attest run --unlocked {analysis_file}")
     } else {
         format!("attest run {analysis_file}")
     };
-    Ok(Results {
+    let as_locked = if changes.iter().any(|c| changes_analysis(&c.field)) {
+        let (lock, _) = LockFile::read(&lock::lock_path(path))?;
+        // The file is read again only when the locked plan reads it
+        // differently (another path, format, rule or column).
+        let same_rows = lock.plan.data == file.plan.data
+            && lock.plan.exclude == file.plan.exclude
+            && data::used_columns(&lock.plan) == data::used_columns(&file.plan);
+        Some(Box::new(run_as_locked(
+            &lock.plan,
+            &dir,
+            same_rows.then_some(&ds),
+        )))
+    } else {
+        None
+    };
+    let mut r = results_of(&file, (state, record, changes), &ds, &dir, outcome, command);
+    r.as_locked = as_locked;
+    Ok(r)
+}
+
+/// Whether a change of this canonical field changes the analysis (rather
+/// than only the words around it: title, authors, summary, a claim, a
+/// label or a unit).
+fn changes_analysis(field: &str) -> bool {
+    let root = field.split(['.', '[']).next().unwrap_or(field);
+    let last = field.rsplit('.').next().unwrap_or(field);
+    !(["title", "authors", "summary"].contains(&root)
+        || ["claim", "label", "units"].contains(&last))
+}
+
+/// The plan exactly as locked, run on the data its own settings read.
+/// A locked plan that cannot run at all (its column was renamed since,
+/// say) is recorded with the reason instead of failing the run.
+fn run_as_locked(plan: &crate::plan::Plan, dir: &Path, ds: Option<&data::Dataset>) -> LockedRun {
+    let ran = match ds {
+        Some(ds) => analyse_all(plan, ds, None),
+        None => data::load(plan, dir).and_then(|ds| analyse_all(plan, &ds, None)),
+    };
+    match ran {
+        Ok((hypotheses, not_computed, correction_applied)) => LockedRun {
+            plan_sha256: plan_hash(plan),
+            hypotheses,
+            not_computed,
+            correction_applied,
+            not_run: None,
+        },
+        Err(f) => LockedRun {
+            plan_sha256: plan_hash(plan),
+            hypotheses: Vec::new(),
+            not_computed: Vec::new(),
+            correction_applied: Correction::None,
+            not_run: Some(f.what),
+        },
+    }
+}
+
+/// What [`analyse_all`] returns: the results, the hypotheses not
+/// computed, and the correction that applied.
+type Analysed = (Vec<HypothesisResult>, Vec<NotComputed>, Correction);
+
+/// The lock state, the lock's record and the changes since the lock.
+type LockView = (
+    LockState,
+    Option<LockRecord>,
+    Vec<crate::plan::canonical::FieldChange>,
+);
+
+/// The results model of a plan run on a loaded dataset.
+fn results_of(
+    file: &AnalysisFile,
+    (lock, lock_record, changes): LockView,
+    ds: &data::Dataset,
+    dir: &Path,
+    (hypotheses, not_computed, correction_applied): Analysed,
+    command: String,
+) -> Results {
+    let plan = &file.plan;
+    Results {
         tool: "attest".into(),
+        rehearsal: None,
         version: env!("CARGO_PKG_VERSION").into(),
         plan_sha256: plan_hash(plan),
-        lock: state,
-        lock_record: record,
+        lock,
+        lock_record,
         changes,
         deviations: file.deviations.clone(),
         plan: plan.clone(),
@@ -213,13 +291,156 @@ pub(crate) fn compute(path: &Path, unlocked: bool) -> Result<Results> {
             path: plan.data.path.clone(),
             sha256: ds.sha256.clone(),
             rows: ds.rows,
-            outside_plan_folder: outside(&dir, &ds.path),
+            outside_plan_folder: outside(dir, &ds.path),
         },
-        hypotheses: hyps,
+        hypotheses,
+        not_computed,
+        as_locked: None,
         correction_applied,
         command,
-        analysis_file,
+        analysis_file: lock::file_name(&file.path),
+    }
+}
+
+/// What `rehearse` produced.
+pub(crate) struct RehearseOutcome {
+    /// The blinded results.
+    pub results: Results,
+    /// Where the outputs are.
+    pub out_dir: PathBuf,
+    /// The record written beside the lock, when a lock exists.
+    pub recorded: Option<PathBuf>,
+}
+
+/// The default folder of a rehearsal: `out/<stem>.rehearsal/`, beside the
+/// run's folder and never inside it, so neither output set ever holds
+/// files of the other.
+pub(crate) fn default_rehearsal_out(path: &Path) -> PathBuf {
+    let run = default_out(path);
+    let name = run
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    run.with_file_name(format!("{name}.rehearsal"))
+}
+
+/// `attest rehearse`: the whole plan on blinded data (see `rehearsal`).
+pub(crate) fn rehearse(
+    path: &Path,
+    out: Option<&Path>,
+    seed: Option<u64>,
+    templates: Option<&Path>,
+    force: bool,
+) -> Result<RehearseOutcome> {
+    let file = check(path)?;
+    let lock_path = lock::lock_path(path);
+    let locked = lock_path.exists();
+    let (state, record, changes) = lock_state(&file, !locked)?;
+    let dir = plan_dir(path);
+    let ds = data::load(&file.plan, &dir)?;
+    let plan = &file.plan;
+    let seed = seed.unwrap_or(plan.seed);
+    let outcome = analyse_all(plan, &ds, Some(seed))?;
+    let designs: Vec<_> = plan.hypotheses.iter().map(|h| h.design).collect();
+    let command = format!("attest rehearse --seed {seed} {}", lock::file_name(path));
+    let mut results = results_of(&file, (state, record, changes), &ds, &dir, outcome, command);
+    results.rehearsal = Some(Rehearsal {
+        notice: crate::rehearsal::NOTICE.into(),
+        seed,
+        blinding: crate::rehearsal::blinding_words(&designs),
+    });
+    let files = crate::rehearsal::stamp(render::render_run(&results, templates)?);
+    let out_dir = out
+        .map(Path::to_path_buf)
+        .unwrap_or_else(|| default_rehearsal_out(path));
+    let target = output::prepare(&out_dir, force)?;
+    let mut recorded = None;
+    target.write(&files, || {
+        if locked {
+            let lock_sha = results
+                .lock_record
+                .as_ref()
+                .map(|l| l.sha256.clone())
+                .unwrap_or_default();
+            let rec = RehearsalRecord {
+                at: lock::rfc3339_utc(lock::now_epoch()),
+                data_sha256: ds.sha256.clone(),
+                lock_sha256: lock_sha,
+                seed,
+                version: env!("CARGO_PKG_VERSION").into(),
+            };
+            recorded = Some(crate::rehearsal::record(path, &rec)?);
+        }
+        Ok(())
+    })?;
+    Ok(RehearseOutcome {
+        results,
+        out_dir,
+        recorded,
     })
+}
+
+/// Every hypothesis of a plan on a loaded dataset: the results, the
+/// hypotheses whose values leave their test undefined, and the correction
+/// that applied. Selecting a hypothesis' values fails the whole plan (a
+/// column or level that is not there is a plan error); a test that cannot
+/// be computed on the values fails only its hypothesis, unless no
+/// hypothesis can be computed at all. `blind` (a seed) blinds each
+/// hypothesis' values before the analysis, for a rehearsal.
+pub(crate) fn analyse_all(
+    plan: &crate::plan::Plan,
+    ds: &data::Dataset,
+    blind: Option<u64>,
+) -> Result<Analysed> {
+    let outcomes = plan
+        .hypotheses
+        .par_iter()
+        .enumerate()
+        .map(|(i, h)| {
+            let mut sel = data::select(ds, plan, h)?;
+            if let Some(seed) = blind {
+                crate::rehearsal::blind(&mut sel, h, seed, i);
+            }
+            let rows = sel.flow.clone();
+            match analysis::analyse(plan, h, sel) {
+                Ok(r) => Ok(Ok(r)),
+                Err(f) if f.kind == crate::error::Kind::Input => {
+                    let prefix = format!("hypothesis {}: ", h.id);
+                    let reason = f.what.strip_prefix(&prefix).unwrap_or(&f.what).to_string();
+                    Ok(Err((
+                        f,
+                        NotComputed {
+                            id: h.id.clone(),
+                            claim: h.claim.clone(),
+                            reason,
+                            rows,
+                        },
+                    )))
+                }
+                Err(f) => Err(f),
+            }
+        })
+        .collect::<Result<Vec<_>>>()?;
+    let mut hyps = Vec::new();
+    let mut not_computed = Vec::new();
+    let mut first_failure = None;
+    for o in outcomes {
+        match o {
+            Ok(r) => hyps.push(r),
+            Err((f, nc)) => {
+                first_failure.get_or_insert(f);
+                not_computed.push(nc);
+            }
+        }
+    }
+    if hyps.is_empty() {
+        if let Some(f) = first_failure {
+            // Nothing to report: the refusal says why.
+            return Err(f);
+        }
+    }
+    let correction = analysis::adjust_family(plan, &mut hyps, not_computed.len());
+    Ok((hyps, not_computed, correction))
 }
 
 /// Whether `data` lies outside the folder tree of the analysis file.

@@ -25,6 +25,10 @@ use serde::{Deserialize, Serialize};
 pub struct Results {
     /// Always `"attest"`.
     pub tool: String,
+    /// Present only on a rehearsal: the run was made on blinded data and
+    /// none of its numbers is a result (see `attest rehearse`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rehearsal: Option<Rehearsal>,
     /// Version of attest that produced the results.
     pub version: String,
     /// SHA-256 of the canonical plan that was run.
@@ -41,8 +45,17 @@ pub struct Results {
     pub plan: Plan,
     /// The data file and how it was read.
     pub data: DataRecord,
-    /// Per-hypothesis results, in plan order.
+    /// Per-hypothesis results, in plan order (hypotheses that could not be
+    /// computed are in `not_computed` instead).
     pub hypotheses: Vec<HypothesisResult>,
+    /// Hypotheses whose values leave the preregistered test undefined,
+    /// with the reason; the others are reported as usual.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub not_computed: Vec<NotComputed>,
+    /// When a deviation changed the analysis: the plan exactly as locked,
+    /// run on the same data, so both conclusions can be read side by side.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub as_locked: Option<Box<LockedRun>>,
     /// The multiplicity correction that actually applies: the plan's, or
     /// `none` when the plan has a single hypothesis (nothing to correct for).
     pub correction_applied: Correction,
@@ -51,6 +64,63 @@ pub struct Results {
     pub command: String,
     /// The analysis file's name (relative to its folder).
     pub analysis_file: String,
+}
+
+/// What marks a rehearsal's outputs: how the data were blinded.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Rehearsal {
+    /// Always the same warning, so a reader of the JSON alone is told.
+    pub notice: String,
+    /// The seed of the blinding.
+    pub seed: u64,
+    /// How each design's values were blinded.
+    pub blinding: Vec<String>,
+}
+
+/// A rehearsal recorded beside the lock (`<stem>.rehearsal-N.json`).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct RehearsalRecord {
+    /// When the rehearsal ran (UTC, RFC 3339).
+    pub at: String,
+    /// SHA-256 of the data file the rehearsal read.
+    pub data_sha256: String,
+    /// SHA-256 of the lock file at the time.
+    pub lock_sha256: String,
+    /// The seed of the blinding.
+    pub seed: u64,
+    /// attest version that rehearsed.
+    pub version: String,
+}
+
+/// One hypothesis whose test could not be computed.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct NotComputed {
+    /// Identifier from the plan.
+    pub id: String,
+    /// The claim in the plan's words.
+    pub claim: String,
+    /// Why, in plain words (true of the values).
+    pub reason: String,
+    /// The flow of rows up to the failure.
+    pub rows: RowFlow,
+}
+
+/// The plan as locked, run beside the plan as it stands.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct LockedRun {
+    /// SHA-256 of the locked canonical plan.
+    pub plan_sha256: String,
+    /// Per-hypothesis results of the locked plan.
+    pub hypotheses: Vec<HypothesisResult>,
+    /// Hypotheses of the locked plan that could not be computed.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub not_computed: Vec<NotComputed>,
+    /// The correction that applied to the locked plan.
+    pub correction_applied: Correction,
+    /// Why the locked plan could not run at all on these data (absent
+    /// when it ran).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub not_run: Option<String>,
 }
 
 /// Relation between the plan that ran and the lock.
@@ -89,6 +159,9 @@ pub struct LockRecord {
     /// the field is left out).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub evidence: Vec<crate::seal::Evidence>,
+    /// Rehearsals on blinded data recorded beside the lock, oldest first.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub rehearsals: Vec<RehearsalRecord>,
 }
 
 /// The data file as read.

@@ -54,9 +54,13 @@ const HEAD: &str = r##"# A new analysis plan, written by `attest new`. Every lin
 # hold `key = value` are optional keys: remove the "# " to use one.
 #
 # Work through it top to bottom, then:
-#   attest check analyses/NAME.toml   (is the plan complete and consistent?)
-#   attest lock analyses/NAME.toml    (seal it BEFORE you look at the data)
-#   attest run analyses/NAME.toml     (later, when the data are in)
+#   attest check analyses/NAME.toml     (is the plan complete and consistent?)
+#   attest rehearse analyses/NAME.toml  (once the data file exists: the whole
+#                                        plan on blinded data, so slips in the
+#                                        file show up before the lock, with
+#                                        no result in sight)
+#   attest lock analyses/NAME.toml      (seal it BEFORE you look at the data)
+#   attest run analyses/NAME.toml       (then, with the data in)
 #
 # Every key is explained in docs/guide/reference/analysis-file.md.
 

@@ -258,6 +258,13 @@ pub fn verify(
     let raw: serde_json::Value = serde_json::from_slice(&text).map_err(parse_error)?;
     refuse_foreign_paths(&raw, &results_path)?;
     let recorded: Results = serde_json::from_slice(&text).map_err(parse_error)?;
+    if recorded.rehearsal.is_some() {
+        return Err(Failure::input(format!(
+            "{} is a rehearsal on blinded data, not a report: none of its numbers is a result, so there is nothing to verify",
+            crate::error::clean(&results_path.display().to_string())
+        ))
+        .help("verify the folder `attest run` wrote (out/<stem>/); rehearse again to refresh a rehearsal"));
+    }
     let analysis = find_analysis(&recorded, plan)?;
     let root = boundary(&analysis)?;
     if plan.is_none() {

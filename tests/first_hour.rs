@@ -66,7 +66,9 @@ fn completions_and_man_page_come_from_the_same_definitions() {
     let c = Case::new();
     let out = c.attest(&["completions", "bash"]).success();
     let bash = String::from_utf8_lossy(&out.get_output().stdout).into_owned();
-    for sub in ["check", "lock", "run", "verify", "power", "values", "new"] {
+    for sub in [
+        "check", "rehearse", "lock", "run", "verify", "power", "values", "new",
+    ] {
         assert!(bash.contains(sub), "completion lacks {sub}");
     }
     let out = c.attest(&["man"]).success();

@@ -407,6 +407,7 @@ fn h2() -> HypothesisResult {
 fn scenario() -> Results {
     Results {
         tool: "attest".into(),
+        rehearsal: None,
         version: "0.1.0".into(),
         plan_sha256: "3f1c0d6e9b2a4c8d7e6f5a4b3c2d1e0f9a8b7c6d5e4f3a2b1c0d9e8f7a6b5c4d".into(),
         lock: LockState::AsLocked,
@@ -420,6 +421,7 @@ fn scenario() -> Results {
             intact: true,
             witness: attest::witness::Witness::NoGit,
             evidence: vec![],
+            rehearsals: vec![],
         }),
         changes: vec![],
         deviations: vec![],
@@ -431,6 +433,8 @@ fn scenario() -> Results {
             outside_plan_folder: false,
         },
         hypotheses: vec![h1(), h2()],
+        not_computed: vec![],
+        as_locked: None,
         correction_applied: Correction::Holm,
         command: "attest run garden.toml".into(),
         analysis_file: "garden.toml".into(),
@@ -633,6 +637,11 @@ fn status_lines_follow_the_lock_state() {
         date: "2026-05-01".into(),
         change: "alpha".into(),
         reason: "the funder asked".into(),
+        field: None,
+        planned: None,
+        when: None,
+        effect: None,
+        severity: None,
     }];
     let md = render_report(&r, None).unwrap().report_md;
     assert!(md.contains("**Ran with deviations from the lock** (locked 2026-04-02)"));
@@ -645,6 +654,88 @@ fn status_lines_follow_the_lock_state() {
     r.lock_record = None;
     let md = render_report(&r, None).unwrap().report_md;
     assert!(md.contains("**Not preregistered**"));
+}
+
+/// The part of a report from `## title` to the next `## `.
+fn section<'a>(md: &'a str, title: &str) -> &'a str {
+    let start = md
+        .find(title)
+        .unwrap_or_else(|| panic!("no {title} in {md}"));
+    let rest = &md[start..];
+    let end = rest[3..].find("\n## ").map_or(rest.len(), |e| e + 4);
+    &rest[..end]
+}
+
+#[test]
+fn snapshot_changes_table_and_not_computed() {
+    let mut r = scenario();
+    r.lock = LockState::Deviates;
+    r.changes = vec![
+        attest::plan::canonical::FieldChange {
+            field: "alpha".into(),
+            locked: "0.05".into(),
+            current: "0.01".into(),
+        },
+        attest::plan::canonical::FieldChange {
+            field: "hypotheses[H1].method".into(),
+            locked: "welch-t".into(),
+            current: "student-t".into(),
+        },
+    ];
+    r.deviations = vec![
+        Deviation {
+            date: "2026-05-01".into(),
+            change: "a stricter level".into(),
+            reason: "the funder asked".into(),
+            field: Some("alpha".into()),
+            planned: None,
+            when: Some(attest::plan::Timing::BeforeAccess),
+            effect: Some("fewer findings pass".into()),
+            severity: Some(attest::plan::Severity::Stronger),
+        },
+        Deviation {
+            date: "2026-05-02".into(),
+            change: "recruited from two schools".into(),
+            reason: "one school closed".into(),
+            field: None,
+            planned: Some("one school".into()),
+            when: Some(attest::plan::Timing::BeforeCollection),
+            effect: None,
+            severity: None,
+        },
+    ];
+    if let Some(l) = r.lock_record.as_mut() {
+        l.data_existed = true;
+    }
+    let h2 = r.hypotheses.pop().unwrap();
+    r.not_computed = vec![attest::results::NotComputed {
+        id: h2.id.clone(),
+        claim: h2.claim.clone(),
+        reason: "welch-t cannot be computed: every value within each group is the same".into(),
+        rows: h2.rows.clone(),
+    }];
+    let mut locked_h1 = r.hypotheses[0].clone();
+    locked_h1.method = Method::WelchT;
+    locked_h1.decision = match locked_h1.decision {
+        Decision::Reject => Decision::Retain,
+        Decision::Retain => Decision::Reject,
+    };
+    r.as_locked = Some(Box::new(LockedRun {
+        plan_sha256: "0".repeat(64),
+        hypotheses: vec![locked_h1, h2.clone()],
+        not_computed: vec![],
+        correction_applied: Correction::Holm,
+        not_run: None,
+    }));
+    let md = render_report(&r, None).unwrap().report_md;
+    insta::assert_snapshot!("changes_table", section(&md, "## Changes since the lock"));
+    insta::assert_snapshot!(
+        "as_locked_and_as_run",
+        section(&md, "## As locked and as run")
+    );
+    insta::assert_snapshot!("not_computed", section(&md, "## Not computed"));
+    // "before-collection" while the data existed at the lock is flagged.
+    assert!(md.contains("CONTRADICTED by the record"), "{md}");
 }
 
 #[test]

@@ -15,6 +15,7 @@ use crate::results::*;
 use crate::stats::{self, describe, Alternative, StatsError};
 use rayon::prelude::*;
 
+mod degenerate;
 pub(crate) mod planning;
 mod resolution;
 mod rule;
@@ -34,11 +35,6 @@ pub(crate) const PLOT_BINS: usize = 60;
 /// multiplicity correction across hypotheses.
 pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<HypothesisResult> {
     let level = plan.confidence;
-    let fail = |what: &str, e: StatsError| -> Failure {
-        Failure::input(format!("hypothesis {}: {what}: {e}", h.id)).help(
-            "check the row counts in the data (missing values and exclusions reduce them), or revise the plan and record a deviation",
-        )
-    };
     let labels = h.set_names();
     let Selected {
         mut first,
@@ -68,6 +64,12 @@ pub(crate) fn analyse(plan: &Plan, h: &Hypothesis, sel: Selected) -> Result<Hypo
     };
     let mut diffs = diffs;
     sort_values(&mut diffs);
+    let fail = |what: &str, e: StatsError| -> Failure {
+        let why = degenerate::why(&e, h.design, &labels, &first, &second, &diffs);
+        Failure::input(format!("hypothesis {}: {what}: {why}", h.id)).help(
+            "check the row counts in the data (missing values and exclusions reduce them), or revise the plan and record a deviation",
+        )
+    };
     let d_once = std::sync::OnceLock::new();
     let settings = Settings {
         rank: h.conventions.rank_options(),
@@ -207,14 +209,23 @@ fn sort_values(v: &mut [f64]) {
 
 /// Applies the plan's multiplicity correction and the decisions, and
 /// returns the correction that applied: with a single hypothesis there is
-/// nothing to correct for, whatever the plan names.
-pub(crate) fn adjust_all(plan: &Plan, results: &mut [HypothesisResult]) -> Correction {
-    let applied = if results.len() < 2 {
+/// nothing to correct for, whatever the plan names. `not_computed`
+/// hypotheses of the family could not be tested: each counts as one with
+/// p = 1, so the others are corrected for the family the plan declared,
+/// never a smaller one (the conservative reading: a missing test cannot
+/// loosen the others).
+pub(crate) fn adjust_family(
+    plan: &Plan,
+    results: &mut [HypothesisResult],
+    not_computed: usize,
+) -> Correction {
+    let applied = if results.len() + not_computed < 2 {
         Correction::None
     } else {
         plan.correction
     };
-    let ps: Vec<f64> = results.iter().map(|r| r.p).collect();
+    let mut ps: Vec<f64> = results.iter().map(|r| r.p).collect();
+    ps.extend(std::iter::repeat_n(1.0, not_computed));
     let adj = stats::multiplicity::adjust(&ps, applied);
     for (r, a) in results.iter_mut().zip(adj) {
         r.p_adjusted = a;

@@ -34,6 +34,25 @@ pub(crate) enum Command {
         /// The analysis file (TOML).
         file: PathBuf,
     },
+    /// Rehearse the whole plan on blinded data before the lock: reads the
+    /// real data file with the plan's settings, hides every effect, and
+    /// writes a report stamped as a rehearsal into out/<stem>.rehearsal/.
+    Rehearse {
+        /// The analysis file (TOML).
+        file: PathBuf,
+        /// Output folder [default: out/<stem>.rehearsal/].
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Seed of the blinding [default: the plan's seed].
+        #[arg(long)]
+        seed: Option<u64>,
+        /// Use templates from this folder where it has them.
+        #[arg(long, value_name = "DIR")]
+        templates: Option<PathBuf>,
+        /// Write into an output folder that holds files attest did not write.
+        #[arg(long)]
+        force: bool,
+    },
     /// Seal the plan: write `<stem>.lock` next to the analysis file and the
     /// preregistration document into the output folder. Never overwrites.
     Lock {

@@ -17,6 +17,8 @@ struct Row {
     hypotheses: String,
     problem: String,
     kind: Option<Kind>,
+    /// Hypotheses that could not be computed (the outputs were written).
+    not_computed: usize,
 }
 
 /// Runs (or compares, with `expect_same`) every analysis and prints the table.
@@ -50,6 +52,13 @@ pub(crate) fn run(
         .map(Kind::exit_code)
         .max()
         .unwrap_or(0);
+    // A failure outranks hypotheses that could not be computed: exit 5
+    // only when every analysis wrote its outputs.
+    let worst = if worst == 0 && rows.iter().any(|r| r.not_computed > 0) {
+        crate::error::NOT_COMPUTED
+    } else {
+        worst
+    };
     if !quiet || worst != 0 {
         super::say(&table(&rows))?;
     }
@@ -81,6 +90,12 @@ fn one(file: &Path, opts: &RunOptions, expect_same: bool) -> Row {
                     format!("differs: {}", diff.join(", ")),
                     Some(Kind::Verification),
                 )
+            } else if !r.not_computed.is_empty() {
+                (
+                    if expect_same { "same" } else { "ok" },
+                    format!("{} not computed", r.not_computed.len()),
+                    None,
+                )
             } else {
                 (
                     if expect_same { "same" } else { "ok" },
@@ -94,6 +109,7 @@ fn one(file: &Path, opts: &RunOptions, expect_same: bool) -> Row {
                 hypotheses: format!("{} ({} supported)", r.hypotheses.len(), supported),
                 problem,
                 kind,
+                not_computed: r.not_computed.len(),
             }
         }
         Err(f) => Row {
@@ -102,6 +118,7 @@ fn one(file: &Path, opts: &RunOptions, expect_same: bool) -> Row {
             hypotheses: "–".into(),
             problem: f.what.clone(),
             kind: Some(f.kind),
+            not_computed: 0,
         },
     }
 }

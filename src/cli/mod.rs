@@ -131,6 +131,39 @@ fn dispatch(cli: Cli) -> Result<i32> {
                 say(&crate::seal::after_lock(&o.lock_path, &at)?)?;
             }
         }
+        Command::Rehearse {
+            file,
+            out,
+            seed,
+            templates,
+            force,
+        } => {
+            let o = pipeline::rehearse(&file, out.as_deref(), seed, templates.as_deref(), force)?;
+            let n = o.results.hypotheses.len();
+            say(&format!(
+                "rehearsed on blinded data: {n} {} ran, {} could not be computed\nwrote {} (every page stamped as a rehearsal; no named values)",
+                if n == 1 { "hypothesis" } else { "hypotheses" },
+                o.results.not_computed.len(),
+                crate::error::clean(&o.out_dir.display().to_string())
+            ))?;
+            if let Some(r) = &o.recorded {
+                say(&format!(
+                    "recorded beside the lock: {}",
+                    crate::error::clean(&r.display().to_string())
+                ))?;
+            }
+            for n in &o.results.not_computed {
+                warn(&format!(
+                    "not computed: {}: {}",
+                    crate::error::clean(&n.id),
+                    crate::error::clean(&n.reason)
+                ));
+            }
+            say("next: fix what the rehearsal showed, then `attest lock` (or, if locked, `attest run`)")?;
+            if !o.results.not_computed.is_empty() {
+                return Ok(crate::error::NOT_COMPUTED);
+            }
+        }
         Command::Sign { file, key } => say(&crate::seal::sign_command(&file, &key)?)?,
         Command::Stamp { file, tsa } => say(&crate::seal::stamp_command(&file, &tsa)?)?,
         Command::Run {
@@ -177,6 +210,16 @@ fn dispatch(cli: Cli) -> Result<i32> {
                     say(&terminal::run_json(&o))?;
                 } else if !quiet {
                     say(&terminal::run_summary(&o, terminal::colour()))?;
+                }
+                if !o.results.not_computed.is_empty() {
+                    for n in &o.results.not_computed {
+                        warn(&format!(
+                            "not computed: {}: {}",
+                            crate::error::clean(&n.id),
+                            crate::error::clean(&n.reason)
+                        ));
+                    }
+                    return Ok(crate::error::NOT_COMPUTED);
                 }
             } else {
                 return batch::run(&files, &opts, expect_same, quiet);

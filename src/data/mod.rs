@@ -215,9 +215,47 @@ pub fn used_columns(plan: &Plan) -> Vec<Use> {
 /// Reads the data file of `plan`, resolved against `plan_dir`, and applies
 /// the plan's exclusion rules.
 pub fn load(plan: &Plan, plan_dir: &Path) -> Result<Dataset> {
+    let mut ds = read_columns(plan, plan_dir, &used_columns(plan))?;
+    ds.excluded_by = exclude::apply(&ds, &plan.exclude)?;
+    Ok(ds)
+}
+
+/// What `lock` may read of an existing data file: the header and the
+/// labels of the grouping, condition and unit columns, never an outcome
+/// value. Every column the plan names must be in the header and every
+/// level it names among the labels, refused with the messages `run` gives.
+pub(crate) fn check_labels(plan: &Plan, plan_dir: &Path) -> Result<()> {
+    // A column used only as numbers is located in the header and its cells
+    // are skipped unread (neither numbers nor labels are kept).
+    let wanted: Vec<Use> = used_columns(plan)
+        .into_iter()
+        .map(|u| Use {
+            numeric: false,
+            ..u
+        })
+        .collect();
+    let ds = read_columns(plan, plan_dir, &wanted)?;
+    for h in &plan.hypotheses {
+        match &h.comparison {
+            Comparison::Groups { group, levels } => {
+                select::assign(&ds, group, levels)?;
+            }
+            Comparison::PairedRows {
+                condition, levels, ..
+            } => {
+                select::assign(&ds, condition, levels)?;
+            }
+            _ => {}
+        }
+    }
+    Ok(())
+}
+
+/// Reads the `wanted` columns of the plan's data file, no rule applied.
+fn read_columns(plan: &Plan, plan_dir: &Path, wanted: &[Use]) -> Result<Dataset> {
     let path = plan_dir.join(&plan.data.path);
     let display = plan.data.path.clone();
-    let wanted = used_columns(plan);
+    let wanted = wanted.to_vec();
     let (table, sha256) = match plan.data.format {
         DataFormat::Delimited => read::read_delimited_file(&path, &display, &plan.data, &wanted)?,
         DataFormat::Xlsx => {
@@ -241,7 +279,7 @@ pub fn load(plan: &Plan, plan_dir: &Path) -> Result<Dataset> {
             )
         }
     };
-    let mut ds = Dataset {
+    let ds = Dataset {
         display_path: display,
         path,
         sha256,
@@ -251,7 +289,6 @@ pub fn load(plan: &Plan, plan_dir: &Path) -> Result<Dataset> {
         lines: table.lines,
         excluded_by: Vec::new(),
     };
-    ds.excluded_by = exclude::apply(&ds, &plan.exclude)?;
     Ok(ds)
 }
 

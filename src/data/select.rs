@@ -178,7 +178,7 @@ fn outcome(h: &Hypothesis) -> Result<&str> {
 }
 
 /// Assigns each row to a level of `column`; errors when a planned level is absent.
-fn assign(ds: &Dataset, column: &str, levels: &[String; 2]) -> Result<Vec<u8>> {
+pub(crate) fn assign(ds: &Dataset, column: &str, levels: &[String; 2]) -> Result<Vec<u8>> {
     let t = ds.text(column)?;
     let code = |l: &str| -> Result<u32> {
         t.code_of(l).ok_or_else(|| {

@@ -482,13 +482,63 @@ impl Planning {
     }
 }
 
-/// A declared deviation from the locked plan (outside the hash).
+/// A declared deviation from the locked plan (outside the hash). The
+/// optional fields follow the reporting guidance of Willroth & Atherton
+/// (2024, "Best laid plans: A guide to reporting preregistration
+/// deviations", *Advances in Methods and Practices in Psychological
+/// Science* 7(1)) and Lakens (2024, "When and how to deviate from a
+/// preregistration", *Collabra: Psychology* 10(1), 117094); each is left
+/// out of `results.json` when absent.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Deviation {
     /// When the change was made (free text, ISO date recommended).
     pub date: String,
-    /// What changed.
+    /// What was done instead.
     pub change: String,
     /// Why.
     pub reason: String,
+    /// The field of the plan it concerns, as the changes table names it
+    /// (`hypotheses[H1].method`); its locked value fills `planned`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub field: Option<String>,
+    /// What the plan said.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub planned: Option<String>,
+    /// When the change was decided.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub when: Option<Timing>,
+    /// How it affects the reading of the results.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub effect: Option<String>,
+    /// Whether it makes the test weaker or stronger (Lakens 2024).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub severity: Option<Severity>,
+}
+
+/// When a deviation was decided, relative to the data.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Timing {
+    /// Before any data were collected.
+    BeforeCollection,
+    /// After collection, before anyone looked at the data.
+    BeforeAccess,
+    /// After looking at the data, before analysing them.
+    BeforeAnalysis,
+    /// After seeing results.
+    AfterResults,
+}
+
+/// What a deviation does to the test's severity.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Severity {
+    /// The test can fail less easily than the locked one.
+    Weaker,
+    /// About as able to fail as the locked one.
+    Same,
+    /// Able to fail more easily than the locked one.
+    Stronger,
+    /// Not known.
+    Unclear,
 }

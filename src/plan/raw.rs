@@ -193,4 +193,14 @@ pub(crate) struct RawDeviation {
     pub change: Option<Spanned<String>>,
     /// Why.
     pub reason: Option<Spanned<String>>,
+    /// The changed field of the plan (as the changes table names it).
+    pub field: Option<Spanned<String>>,
+    /// What the plan said, in the researcher's words.
+    pub planned: Option<Spanned<String>>,
+    /// When the change was decided, one of four timings.
+    pub when: Option<Spanned<String>>,
+    /// How the change affects the reading of the results.
+    pub effect: Option<Spanned<String>>,
+    /// Whether the change makes the test weaker or stronger.
+    pub severity: Option<Spanned<String>>,
 }

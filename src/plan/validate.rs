@@ -708,10 +708,52 @@ impl Checker<'_> {
     }
 
     fn deviation(&self, d: Spanned<RawDeviation>) -> Result<Deviation> {
+        let r = d.get_ref();
+        let optional = |v: &Option<Spanned<String>>, key: &str| -> Result<Option<String>> {
+            v.clone()
+                .map(|s| self.text_key(Some(s), key, &d))
+                .transpose()
+        };
+        use super::{Severity, Timing};
         Ok(Deviation {
-            date: self.text_key(d.get_ref().date.clone(), "date", &d)?,
-            change: self.text_key(d.get_ref().change.clone(), "change", &d)?,
-            reason: self.text_key(d.get_ref().reason.clone(), "reason", &d)?,
+            date: self.text_key(r.date.clone(), "date", &d)?,
+            change: self.text_key(r.change.clone(), "change", &d)?,
+            reason: self.text_key(r.reason.clone(), "reason", &d)?,
+            field: optional(&r.field, "field")?,
+            planned: optional(&r.planned, "planned")?,
+            when: r
+                .when
+                .as_ref()
+                .map(|w| {
+                    self.choice(
+                        w,
+                        "when",
+                        &[
+                            ("before-collection", Timing::BeforeCollection),
+                            ("before-access", Timing::BeforeAccess),
+                            ("before-analysis", Timing::BeforeAnalysis),
+                            ("after-results", Timing::AfterResults),
+                        ],
+                    )
+                })
+                .transpose()?,
+            effect: optional(&r.effect, "effect")?,
+            severity: r
+                .severity
+                .as_ref()
+                .map(|w| {
+                    self.choice(
+                        w,
+                        "severity",
+                        &[
+                            ("weaker", Severity::Weaker),
+                            ("same", Severity::Same),
+                            ("stronger", Severity::Stronger),
+                            ("unclear", Severity::Unclear),
+                        ],
+                    )
+                })
+                .transpose()?,
         })
     }
 

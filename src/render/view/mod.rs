@@ -11,6 +11,7 @@
 //! values) is fed the same [`ReportView`] next to the raw model.
 
 pub(crate) mod apa;
+pub(crate) mod deviations;
 pub(crate) mod planning;
 pub(crate) mod provenance;
 pub(crate) mod sentence;
@@ -61,14 +62,13 @@ impl TableView {
     }
 }
 
-/// A table of plan or lock text, escaped; none when it has no rows.
-fn text_table<'a>(
-    title: &str,
-    header: [&str; 3],
-    rows: impl Iterator<Item = [&'a String; 3]>,
-) -> Option<TableView> {
-    let rows: Vec<Vec<Value>> = rows.map(|r| r.map(|t| md(escape(t))).to_vec()).collect();
-    (!rows.is_empty()).then(|| TableView::new(title.into(), cells(header), rows))
+/// A table of plan, lock or data text, escaped; none when it has no rows.
+fn text_table(title: &str, header: &[&str], rows: Vec<Vec<String>>) -> Option<TableView> {
+    let rows: Vec<Vec<Value>> = rows
+        .into_iter()
+        .map(|r| r.iter().map(|t| md(escape(t))).collect())
+        .collect();
+    (!rows.is_empty()).then(|| TableView::new(title.into(), cells(header.iter().copied()), rows))
 }
 
 fn cells<'a>(words: impl IntoIterator<Item = &'a str>) -> Vec<Value> {
@@ -173,8 +173,16 @@ pub(crate) struct FigureView {
 pub(crate) struct ReportView {
     title: String,
     status: Value,
+    /// The banner of a rehearsal on blinded data.
+    rehearsal: Option<Value>,
+    /// How a rehearsal blinded each design.
+    blinding: Vec<String>,
+    /// The one table of changes since the lock, declared or detected.
     changes: Option<TableView>,
-    deviations: Option<TableView>,
+    /// The plan as locked beside the plan as run, per hypothesis.
+    both: Vec<Value>,
+    /// Hypotheses that could not be computed, with the reason.
+    not_computed: Option<TableView>,
     lock_state: LockState,
     glance: TableView,
     hypotheses: Vec<HypothesisView>,
@@ -220,19 +228,30 @@ pub(crate) fn report(r: &Results) -> ReportView {
     };
     let mut changes = text_table(
         "Changes Since the Lock",
-        ["Field", "Locked value", "Current value"],
-        r.changes.iter().map(|c| [&c.field, &c.locked, &c.current]),
+        &[
+            "What changed",
+            "What the plan said",
+            "What was done instead",
+            "Why",
+            "When",
+            "Effect on the reading",
+            "Declared",
+        ],
+        deviations::changes_table(r),
     );
-    let mut deviations = text_table(
-        "Deviations Declared in the Analysis File",
-        ["Date", "What changed", "Why"],
-        r.deviations.iter().map(|d| [&d.date, &d.change, &d.reason]),
+    let mut not_computed = text_table(
+        "Hypotheses Not Computed",
+        &["Hypothesis", "Claim", "Why it could not be computed"],
+        deviations::not_computed(r),
     );
-    for t in changes.iter_mut().chain(deviations.iter_mut()) {
+    if let Some(t) = changes.as_mut() {
         number(t);
     }
     let mut glance = glance_table(r, &shown);
     number(&mut glance);
+    if let Some(t) = not_computed.as_mut() {
+        number(t);
+    }
     for h in hyps.iter_mut() {
         number(&mut h.descriptives);
     }
@@ -242,8 +261,11 @@ pub(crate) fn report(r: &Results) -> ReportView {
     ReportView {
         title: r.plan.title.clone(),
         status: md(status(r)),
+        rehearsal: deviations::rehearsal_banner(r).map(md),
+        blinding: deviations::blinding(r),
         changes,
-        deviations,
+        both: deviations::both(r).into_iter().map(md).collect(),
+        not_computed,
         lock_state: r.lock,
         glance,
         hypotheses: hyps,
@@ -320,9 +342,11 @@ fn status(r: &Results) -> String {
     let mut s = match r.lock {
         LockState::AsLocked => format!("**Ran as locked**{locked}."),
         LockState::Deviates => format!(
-            "**Ran with deviations from the lock**{locked}: {} differ from the locked plan; see *Changes since the lock*.",
-            if r.changes.len() == 1 { "1 field".to_string() } else { format!("{} fields", r.changes.len()) }
+            "**Ran with deviations from the lock**{locked}: {} differ from the locked plan; see *Changes since the lock*{}.",
+            if r.changes.len() == 1 { "1 field".to_string() } else { format!("{} fields", r.changes.len()) },
+            if r.as_locked.is_some() { ", and *As locked and as run* for both analyses" } else { "" }
         ),
+        LockState::Unlocked if r.rehearsal.is_some() => "**Not locked yet**: a rehearsal comes before the lock; lock the plan once the rehearsal runs clean.".into(),
         LockState::Unlocked => "**Not preregistered**: this analysis ran without a lock, so nothing shows it was planned before the data were seen.".into(),
     };
     if let Some(l) = &r.lock_record {
@@ -335,6 +359,41 @@ fn status(r: &Results) -> String {
             s.push(' ');
             s.push_str(&escape(&w));
         }
+    }
+    if let Some(l) = &r.lock_record {
+        if let Some(first) = l.rehearsals.first() {
+            s.push_str(&format!(
+                " Rehearsed on blinded data after the lock: {} (first {}).",
+                if l.rehearsals.len() == 1 {
+                    "once".to_string()
+                } else {
+                    format!("{} times", l.rehearsals.len())
+                },
+                escape(date_of(&first.at))
+            ));
+        }
+    }
+    if r.lock == LockState::AsLocked && !r.deviations.is_empty() {
+        s.push_str(" Deviations are declared; see *Changes since the lock*.");
+    }
+    let contradicted = r
+        .deviations
+        .iter()
+        .filter(|d| deviations::timing_conflict(r, d).is_some())
+        .count();
+    if contradicted > 0 {
+        s.push_str(&format!(
+            " **The record contradicts the timing {} claims**; see *Changes since the lock*.",
+            if contradicted == 1 {
+                "one deviation".to_string()
+            } else {
+                format!("{contradicted} deviations")
+            }
+        ));
+    }
+    if let Some(n) = deviations::not_computed_status(r) {
+        s.push(' ');
+        s.push_str(&n);
     }
     s
 }
