@@ -36,6 +36,14 @@ fn close(got: f64, want: f64, rel: f64, what: &str) {
     );
 }
 
+/// The two one-sided p values of a TOST and their maximum against the
+/// reference case's `p_lower`, `p_upper` and `p`.
+fn tost_ps([lower, upper, p]: [f64; 3], c: &Value, rel: f64, name: &str) {
+    close(lower, f(&c["p_lower"]), rel, &format!("p lower {name}"));
+    close(upper, f(&c["p_upper"]), rel, &format!("p upper {name}"));
+    close(p, f(&c["p"]), rel, &format!("p {name}"));
+}
+
 fn close_opt(got: Option<f64>, want: &Value, rel: f64, what: &str) {
     match (got, want.as_f64()) {
         (Some(g), Some(w)) => close(g, w, rel, what),
@@ -197,19 +205,7 @@ fn superiority_tost_matches_statsmodels() {
             0.05,
         )
         .unwrap_or_else(|e| panic!("{name}: {e}"));
-        close(
-            t.p_lower,
-            f(&c["p_lower"]),
-            1e-9,
-            &format!("p lower {name}"),
-        );
-        close(
-            t.p_upper,
-            f(&c["p_upper"]),
-            1e-9,
-            &format!("p upper {name}"),
-        );
-        close(t.p, f(&c["p"]), 1e-9, &format!("p {name}"));
+        tost_ps([t.p_lower, t.p_upper, t.p], c, 1e-9, &name);
     }
 }
 
@@ -229,19 +225,7 @@ fn shift_tost_matches_scipy_exact() {
             &RankOptions::default(),
         )
         .unwrap_or_else(|e| panic!("{name}: {e}"));
-        close(
-            t.p_lower,
-            f(&c["p_lower"]),
-            1e-10,
-            &format!("p lower {name}"),
-        );
-        close(
-            t.p_upper,
-            f(&c["p_upper"]),
-            1e-10,
-            &format!("p upper {name}"),
-        );
-        close(t.p, f(&c["p"]), 1e-10, &format!("p {name}"));
+        tost_ps([t.p_lower, t.p_upper, t.p], c, 1e-10, &name);
     }
 }
 
@@ -281,19 +265,7 @@ fn signed_rank_tost_matches_scipy_exact() {
             &RankOptions::default(),
         )
         .unwrap_or_else(|e| panic!("{name}: {e}"));
-        close(
-            t.p_lower,
-            f(&c["p_lower"]),
-            1e-10,
-            &format!("p lower {name}"),
-        );
-        close(
-            t.p_upper,
-            f(&c["p_upper"]),
-            1e-10,
-            &format!("p upper {name}"),
-        );
-        close(t.p, f(&c["p"]), 1e-10, &format!("p {name}"));
+        tost_ps([t.p_lower, t.p_upper, t.p], c, 1e-10, &name);
     }
 }
 
@@ -313,19 +285,7 @@ fn check_trimmed_tost(t: &attest::stats::equivalence::Tost, c: &Value, name: &st
         &format!("t upper {name}"),
     );
     close(t.df, f(&c["df"]), 1e-10, &format!("df {name}"));
-    close(
-        t.p_lower,
-        f(&c["p_lower"]),
-        1e-9,
-        &format!("p lower {name}"),
-    );
-    close(
-        t.p_upper,
-        f(&c["p_upper"]),
-        1e-9,
-        &format!("p upper {name}"),
-    );
-    close(t.p, f(&c["p"]), 1e-9, &format!("p {name}"));
+    tost_ps([t.p_lower, t.p_upper, t.p], c, 1e-9, name);
 }
 
 #[test]
