@@ -126,16 +126,21 @@ pub(crate) fn blind(sel: &mut Selected, h: &Hypothesis, seed: u64, index: usize)
     }
 }
 
-/// The outputs of a rehearsal: the run's renderers' files without the
-/// named values (a thesis must never pick up a blinded number by
-/// accident), every figure stamped, standalone and inlined in HTML.
+/// The outputs of a rehearsal: only the files that carry the stamp, every
+/// figure stamped, standalone and inlined in HTML. Kept by name: the
+/// reports (`.md`, `.html`), the SVG figures and `results.json`. Left out:
+/// the named values, `tables.tex` and `references.bib` (a thesis must never
+/// pick up a blinded number by accident), and the binary formats (Word,
+/// PNG, PDF), where a text stamp cannot be added after rendering.
 pub(crate) fn stamp(outputs: Vec<crate::render::Output>) -> Vec<(String, Vec<u8>)> {
     let mark = format!(
         "<text x=\"6\" y=\"14\" font-family=\"sans-serif\" font-size=\"11\" font-weight=\"bold\" fill=\"#b00020\">{NOTICE}</text></svg>"
     );
     outputs
         .into_iter()
-        .filter(|o| o.name != "values.tex" && o.name != "values.json")
+        .filter(|o| {
+            o.name == "results.json" || [".md", ".html", ".svg"].iter().any(|e| o.name.ends_with(e))
+        })
         .map(|o| {
             let bytes = if o.name.ends_with(".svg") || o.name.ends_with(".html") {
                 String::from_utf8_lossy(&o.bytes)

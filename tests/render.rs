@@ -490,11 +490,14 @@ fn lock_of(r: &Results) -> attest::lock::LockFile {
     }
 }
 
-/// Whether the HTML refers to anything outside itself.
+/// Whether the HTML refers to anything outside itself: an address in an
+/// attribute, or a tag or rule that loads one. (A DOI written out as text
+/// in the references list is not a reference the page follows.)
 fn external_references(html: &str) -> Vec<&'static str> {
     [
-        "http://",
-        "https://",
+        "=\"http",
+        "='http",
+        "<a ",
         "<script",
         "<link",
         "<iframe",

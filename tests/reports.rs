@@ -92,8 +92,11 @@ fn html_reports_load_nothing_from_outside() {
                 continue;
             }
             let html = c.read(&path);
+            // An address may appear as text (a DOI in the references
+            // list), never where the page would follow it.
+            let lower = html.to_lowercase();
             assert!(
-                !html.contains("http://") && !html.contains("https://"),
+                !lower.contains("=\"http") && !lower.contains("='http") && !lower.contains("url("),
                 "{path} names an outside resource"
             );
             assert!(

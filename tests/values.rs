@@ -203,3 +203,57 @@ fn the_markdown_example_fills_from_values_json() {
     let values = values(&c, "out/tutoring");
     assert!(text.contains(&values["TutoringHOneStat"]), "{text}");
 }
+
+/// Every demo's `tables.tex` compiles together in one document with a
+/// real LaTeX engine (the labels carry the analysis' name, so they never
+/// clash), and the PDF has one table per report table. Ignored like the
+/// test above; `.ci/run` runs it with `--ignored`.
+#[test]
+#[ignore = "needs pdflatex and booktabs (apt-get install texlive-latex-base texlive-latex-recommended); .ci/run runs it with --ignored"]
+fn every_demos_tables_tex_compiles_in_one_document() {
+    let c = Case::new();
+    copy_dir(&root().join("analyses"), &c.path().join("analyses"));
+    let stems = [
+        "commute",
+        "espresso",
+        "loaves",
+        "picking",
+        "thermostat",
+        "tutoring",
+    ];
+    let mut doc = String::from(
+        "\\documentclass{article}\n\\usepackage{booktabs,tabularx,array}\n\\begin{document}\n",
+    );
+    let mut tables = 0;
+    for stem in stems {
+        c.attest(&["run", "--quiet", &format!("analyses/{stem}.toml")])
+            .success();
+        tables += c
+            .read(&format!("out/{stem}/tables.tex"))
+            .matches("\\begin{table}")
+            .count();
+        doc.push_str(&format!("\\input{{out/{stem}/tables.tex}}\n\\clearpage\n"));
+    }
+    doc.push_str("\\end{document}\n");
+    c.write("all-tables.tex", &doc);
+    let out = std::process::Command::new("pdflatex")
+        .args([
+            "-interaction=nonstopmode",
+            "-halt-on-error",
+            "all-tables.tex",
+        ])
+        .current_dir(c.path())
+        .output()
+        .expect("this test compiles LaTeX: install pdflatex (texlive-latex-base)");
+    let log = String::from_utf8_lossy(&out.stdout);
+    assert!(out.status.success(), "pdflatex failed:\n{log}");
+    // A table wider than the text block is an overfull alignment (a long
+    // word in a narrow wrapping cell is only an overfull paragraph).
+    let wide: Vec<&str> = log
+        .lines()
+        .filter(|l| l.starts_with("Overfull \\hbox") && l.contains("in alignment"))
+        .collect();
+    assert!(wide.is_empty(), "a table is wider than the text: {wide:?}");
+    let aux = c.read("all-tables.aux");
+    assert_eq!(aux.matches("\\newlabel{tab:").count(), tables, "{aux}");
+}

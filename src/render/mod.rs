@@ -11,6 +11,8 @@
 //! outputs say the same thing.
 
 mod axis;
+mod bibliography;
+mod latex_tables;
 pub(crate) mod markdown;
 mod markdown_report;
 mod plan_doc;
@@ -69,6 +71,8 @@ pub(crate) trait Renderer: Sync {
 const RENDERERS: &[&dyn Renderer] = &[
     &svg::Svg,
     &values::NamedValues,
+    &latex_tables::LatexTables,
+    &bibliography::Bibliography,
     &markdown_report::Markdown,
     &markdown_report::Html,
     &results_json::ResultsJson,

@@ -12,8 +12,10 @@
 
 pub(crate) mod apa;
 pub(crate) mod deviations;
+pub(crate) mod methods;
 pub(crate) mod planning;
 pub(crate) mod provenance;
+pub(crate) mod references;
 pub(crate) mod sentence;
 
 use self::apa::{sym, two};
@@ -186,6 +188,12 @@ pub(crate) struct ReportView {
     lock_state: LockState,
     glance: TableView,
     hypotheses: Vec<HypothesisView>,
+    /// The methods paragraphs: what was preregistered, how each test was
+    /// chosen, which conventions applied, with citations.
+    methods: Vec<Value>,
+    /// The references list (APA style), one entry per work the methods
+    /// cite.
+    references: Vec<Value>,
     data_notes: Vec<Value>,
     provenance: Vec<Value>,
     command: Value,
@@ -195,8 +203,10 @@ pub(crate) struct ReportView {
     /// Every table, numbered, in report order (the same tables the fields
     /// above place), for renderers that set tables outside a template.
     #[serde(skip)]
-    #[allow(dead_code)]
     pub tables: Vec<TableView>,
+    /// The works the methods cite, for `references.bib`.
+    #[serde(skip)]
+    pub sources: Vec<references::Source>,
     /// Provenance as machine-readable `<meta>` tags of the HTML report.
     #[serde(skip)]
     pub meta: Vec<(&'static str, String)>,
@@ -258,6 +268,7 @@ pub(crate) fn report(r: &Results) -> ReportView {
     for h in hyps.iter_mut() {
         number(&mut h.rows);
     }
+    let written = methods::write(r, &shown);
     ReportView {
         title: r.plan.title.clone(),
         status: md(status(r)),
@@ -269,6 +280,9 @@ pub(crate) fn report(r: &Results) -> ReportView {
         lock_state: r.lock,
         glance,
         hypotheses: hyps,
+        methods: written.paragraphs.into_iter().map(md).collect(),
+        references: written.sources.iter().map(|s| md(s.apa())).collect(),
+        sources: written.sources,
         data_notes: data_notes(r).into_iter().map(md).collect(),
         provenance: provenance(r),
         command: md(code_block(&r.command)),

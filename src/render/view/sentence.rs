@@ -486,7 +486,7 @@ pub(crate) fn conventions(t: &TestResult) -> Option<String> {
                 _ => "the values are trimmed (the trimmed *t* of Tukey & McLaughlin, 1963)".to_string(),
             };
             return Some(format!(
-                "{share} of the values are cut from each end before the means are taken: {whose}. The effect, robust {}, is the trimmed difference over the winsorised standard deviation, rescaled to estimate Cohen's {} under normality (Algina, Keselman & Penfield, 2005).",
+                "{share} of the values are cut from each end before the means are taken: {whose}. The effect, robust {}, is the trimmed difference over the winsorised standard deviation, rescaled to estimate Cohen's {} under normality (Algina et al., 2005).",
                 apa::sym_sub("d", "R"),
                 sym("d")
             ));
