@@ -147,6 +147,32 @@ fn run(dir: &Path) -> (Option<i32>, String) {
 fn outputs_are_complete(files: &BTreeMap<String, Vec<u8>>) -> Result<(), TestCaseError> {
     for (name, bytes) in files {
         prop_assert!(!name.contains(".partial-"), "partial file {}", name);
+        // The binary formats, each checked by where its format ends.
+        if name.ends_with(".png") {
+            // PNG specification §5.6: the IEND chunk closes the file.
+            prop_assert!(
+                bytes.starts_with(b"\x89PNG\r\n\x1a\n"),
+                "{} is no PNG",
+                name
+            );
+            prop_assert!(bytes.ends_with(b"IEND\xaeB`\x82"), "{} is cut short", name);
+            continue;
+        }
+        if name.ends_with(".pdf") {
+            prop_assert!(bytes.starts_with(b"%PDF-"), "{} is no PDF", name);
+            prop_assert!(
+                bytes.trim_ascii_end().ends_with(b"%%EOF"),
+                "{} is cut short",
+                name
+            );
+            continue;
+        }
+        if name.ends_with(".docx") {
+            // A ZIP ends with its end-of-central-directory record.
+            let z = zip::ZipArchive::new(std::io::Cursor::new(bytes.as_slice()));
+            prop_assert!(z.is_ok(), "{} is not a whole ZIP package", name);
+            continue;
+        }
         let text = String::from_utf8(bytes.clone());
         prop_assert!(text.is_ok(), "{} is not UTF-8", name);
         let text = text.unwrap();

@@ -466,7 +466,7 @@ fn render_report(
         report_html: text("report.html"),
         figures: files
             .iter()
-            .filter(|o| o.name.starts_with("figures/"))
+            .filter(|o| o.name.starts_with("figures/") && o.name.ends_with(".svg"))
             .map(|o| (o.name.clone(), String::from_utf8(o.bytes.clone()).unwrap()))
             .collect(),
     })

@@ -143,9 +143,23 @@ method = "welch-t"
         "a claim passed through as markup"
     );
     for (name, svg) in all_files(&c.path().join("out/a/figures")) {
+        if !name.ends_with(".svg") {
+            continue;
+        }
         let svg = String::from_utf8(svg).unwrap();
         assert!(!svg.contains("<script>"), "{name} carries a script");
     }
+    // In the Word document the label is text too: escaped once, never an
+    // element of the XML.
+    let docx = std::fs::read(c.path().join("out/a/report.docx")).unwrap();
+    let mut z = zip::ZipArchive::new(std::io::Cursor::new(docx)).unwrap();
+    let mut doc = String::new();
+    std::io::Read::read_to_string(&mut z.by_name("word/document.xml").unwrap(), &mut doc).unwrap();
+    assert!(!doc.contains("<script>"), "a label became XML markup");
+    assert!(
+        doc.contains("&lt;script&gt;alert(1)&lt;/script&gt;"),
+        "the label is lost"
+    );
 }
 
 /// Renders a demo report in headless Chromium (Debian's package) and checks

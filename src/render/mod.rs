@@ -12,10 +12,12 @@
 
 mod axis;
 mod bibliography;
+mod docx;
 mod latex_tables;
 pub(crate) mod markdown;
 mod markdown_report;
 mod plan_doc;
+mod raster;
 mod results_json;
 mod svg;
 pub(crate) mod values;
@@ -70,11 +72,13 @@ pub(crate) trait Renderer: Sync {
 /// format is one new module and one line here.
 const RENDERERS: &[&dyn Renderer] = &[
     &svg::Svg,
+    &raster::Raster,
     &values::NamedValues,
     &latex_tables::LatexTables,
     &bibliography::Bibliography,
     &markdown_report::Markdown,
     &markdown_report::Html,
+    &docx::Docx,
     &results_json::ResultsJson,
 ];
 

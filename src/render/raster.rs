@@ -1,0 +1,321 @@
+//! Every figure also as PNG and as PDF, always, beside its SVG: PNG for
+//! word processors and slides (and the Word report embeds it), PDF for
+//! LaTeX's `\includegraphics`. Written on every run rather than on request,
+//! so an output set is the same set of files whatever was asked, and
+//! `verify` checks them like any other file.
+//!
+//! **PNG** at [`DPI`] = 300 dots per inch at the figures' designed print
+//! width of 16 cm ([`super::svg::PRINT_WIDTH_CM`]): [`png_width`] = 1890
+//! pixels wide. The file records that resolution in a `pHYs` chunk
+//! (PNG specification, ISO/IEC 15948, §11.3.5.3: pixels per metre), so a
+//! word processor places it at 16 cm. Rasterised with resvg.
+//!
+//! **PDF** as vectors with svg2pdf, the page the size of the figure, its
+//! text drawn as outlines. svg2pdf writes embedded fonts, and the entries
+//! of each resource dictionary, in the order of a hash map, which changes
+//! from run to run; outlines need no font objects, and [`canonical`] puts
+//! each resource dictionary's entries in sorted order (a permutation of
+//! lines of equal total length, so every object offset stays right). The
+//! text looks the same in every viewer; it cannot be selected.
+//!
+//! **Fonts.** Both read text with one bundled font, DejaVu Sans and its
+//! oblique (`fonts/`, Bitstream Vera licence beside them), and never the
+//! machine's fonts: a system font would make the same results give
+//! different bytes on different machines. The SVG's generic `sans-serif`
+//! maps to it.
+
+use super::{Context, Output, Renderer};
+use crate::error::{Failure, Result};
+use std::sync::{Arc, OnceLock};
+use svg2pdf::usvg;
+
+/// Resolution of the PNG figures at their designed print width.
+pub(crate) const DPI: f64 = 300.0;
+
+/// Width of every PNG figure in pixels: 16 cm at 300 DPI.
+pub(crate) fn png_width() -> u32 {
+    (super::svg::PRINT_WIDTH_CM / 2.54 * DPI).round() as u32
+}
+
+const SANS: &[u8] = include_bytes!("fonts/DejaVuSans.ttf");
+const SANS_OBLIQUE: &[u8] = include_bytes!("fonts/DejaVuSans-Oblique.ttf");
+
+/// The font database: the bundled fonts only.
+fn fonts() -> Arc<usvg::fontdb::Database> {
+    static DB: OnceLock<Arc<usvg::fontdb::Database>> = OnceLock::new();
+    DB.get_or_init(|| {
+        let mut db = usvg::fontdb::Database::new();
+        db.load_font_data(SANS.to_vec());
+        db.load_font_data(SANS_OBLIQUE.to_vec());
+        db.set_sans_serif_family("DejaVu Sans");
+        Arc::new(db)
+    })
+    .clone()
+}
+
+/// Parses an SVG figure with the bundled fonts.
+fn tree(svg: &[u8], name: &str) -> Result<usvg::Tree> {
+    let opt = usvg::Options {
+        font_family: "DejaVu Sans".into(),
+        fontdb: fonts(),
+        ..usvg::Options::default()
+    };
+    usvg::Tree::from_data(svg, &opt)
+        .map_err(|e| Failure::internal(format!("figure {name} could not be read back: {e}")))
+}
+
+/// The PNG of a figure, `png_width()` pixels wide.
+pub(crate) fn png(svg: &[u8], name: &str) -> Result<Vec<u8>> {
+    let tree = tree(svg, name)?;
+    let size = tree.size();
+    let scale = png_width() as f32 / size.width();
+    let height = (size.height() * scale).round() as u32;
+    let mut pixmap = resvg::tiny_skia::Pixmap::new(png_width(), height)
+        .ok_or_else(|| Failure::internal(format!("figure {name} has no area")))?;
+    pixmap.fill(resvg::tiny_skia::Color::WHITE);
+    resvg::render(
+        &tree,
+        resvg::tiny_skia::Transform::from_scale(scale, scale),
+        &mut pixmap.as_mut(),
+    );
+    let png = pixmap
+        .encode_png()
+        .map_err(|e| Failure::internal(format!("figure {name} could not be encoded: {e}")))?;
+    Ok(with_resolution(png, DPI))
+}
+
+/// Inserts a `pHYs` chunk (pixels per metre, both axes) right after the
+/// PNG's header chunk, where the specification allows it (before IDAT).
+fn with_resolution(png: Vec<u8>, dpi: f64) -> Vec<u8> {
+    // Signature (8 bytes) + IHDR (4 length + 4 type + 13 data + 4 CRC).
+    const AFTER_IHDR: usize = 8 + 25;
+    if png.len() < AFTER_IHDR || &png[12..16] != b"IHDR" {
+        return png;
+    }
+    let per_metre = (dpi / 0.0254).round() as u32;
+    let mut chunk = Vec::with_capacity(21);
+    chunk.extend_from_slice(&9u32.to_be_bytes());
+    let mut body = b"pHYs".to_vec();
+    body.extend_from_slice(&per_metre.to_be_bytes());
+    body.extend_from_slice(&per_metre.to_be_bytes());
+    body.push(1); // the unit is the metre
+    chunk.extend_from_slice(&body);
+    chunk.extend_from_slice(&crc32fast::hash(&body).to_be_bytes());
+    let mut out = Vec::with_capacity(png.len() + chunk.len());
+    out.extend_from_slice(&png[..AFTER_IHDR]);
+    out.extend_from_slice(&chunk);
+    out.extend_from_slice(&png[AFTER_IHDR..]);
+    out
+}
+
+/// The PDF of a figure, as vectors, its text as outlines.
+pub(crate) fn pdf(svg: &[u8], name: &str) -> Result<Vec<u8>> {
+    let tree = tree(svg, name)?;
+    let options = svg2pdf::ConversionOptions {
+        embed_text: false,
+        ..svg2pdf::ConversionOptions::default()
+    };
+    // usvg reads the SVG's "16cm" as CSS pixels (96 per inch); at that
+    // resolution the PDF page is the figure's true size, 16 cm wide.
+    svg2pdf::to_pdf(&tree, options, svg2pdf::PageOptions { dpi: 96.0 })
+        .map(canonical)
+        .map_err(|e| Failure::internal(format!("figure {name} could not be made a PDF: {e}")))
+}
+
+/// Sorts the entries of every resource sub-dictionary (`/ExtGState <<`,
+/// `/XObject <<`, …) of a PDF as svg2pdf writes them: one entry per line,
+/// `/name N 0 R`. Lines inside streams are never touched; a dictionary
+/// with any other kind of line is left as it is.
+fn canonical(pdf: Vec<u8>) -> Vec<u8> {
+    const KINDS: [&[u8]; 6] = [
+        b"/ExtGState <<",
+        b"/XObject <<",
+        b"/Pattern <<",
+        b"/Shading <<",
+        b"/ColorSpace <<",
+        b"/Font <<",
+    ];
+    let is_entry = |line: &[u8]| {
+        let t = line.trim_ascii();
+        let mut parts = t.split(|&b| b == b' ');
+        matches!(
+            (parts.next(), parts.next(), parts.next(), parts.next(), parts.next()),
+            (Some(n), Some(num), Some(b"0"), Some(b"R"), None)
+                if n.len() > 1 && n[0] == b'/' && num.iter().all(u8::is_ascii_digit)
+        )
+    };
+    let mut out = pdf.clone();
+    // Line start offsets, skipping stream bodies.
+    let mut lines: Vec<(usize, usize)> = Vec::new();
+    let mut at = 0;
+    let mut in_stream = false;
+    while at < pdf.len() {
+        let end = memchr::memchr(b'\n', &pdf[at..]).map_or(pdf.len(), |i| at + i);
+        let line = &pdf[at..end];
+        if in_stream {
+            if line == b"endstream" {
+                in_stream = false;
+            }
+        } else if line == b"stream" {
+            in_stream = true;
+        } else {
+            lines.push((at, end));
+        }
+        at = end + 1;
+    }
+    let mut i = 0;
+    while i < lines.len() {
+        let (s, e) = lines[i];
+        if KINDS.contains(&pdf[s..e].trim_ascii()) {
+            let first = i + 1;
+            let mut j = first;
+            while j < lines.len() && is_entry(&pdf[lines[j].0..lines[j].1]) {
+                j += 1;
+            }
+            let closes = j < lines.len() && pdf[lines[j].0..lines[j].1].trim_ascii() == b">>";
+            // Consecutive lines only (no stream between them).
+            let contiguous = lines[first..=j.min(lines.len() - 1)]
+                .windows(2)
+                .all(|w| w[0].1 + 1 == w[1].0);
+            if closes && contiguous && j > first + 1 {
+                let mut entries: Vec<&[u8]> =
+                    lines[first..j].iter().map(|&(s, e)| &pdf[s..e]).collect();
+                entries.sort_unstable();
+                let start = lines[first].0;
+                let joined = entries.join(&b'\n');
+                out[start..start + joined.len()].copy_from_slice(&joined);
+            }
+            i = j;
+        } else {
+            i += 1;
+        }
+    }
+    out
+}
+
+/// The renderer: a PNG and a PDF for every SVG figure written before it.
+pub(crate) struct Raster;
+
+impl Renderer for Raster {
+    fn render(&self, cx: &Context, done: &[Output]) -> Result<Vec<Output>> {
+        let mut out = Vec::new();
+        for f in &cx.view.figures {
+            let Some(svg) = done.iter().find(|o| o.name == f.file) else {
+                continue;
+            };
+            let stem = f.file.strip_suffix(".svg").unwrap_or(&f.file);
+            out.push(Output {
+                name: format!("{stem}.png"),
+                bytes: png(&svg.bytes, &f.file)?,
+            });
+            out.push(Output {
+                name: format!("{stem}.pdf"),
+                bytes: pdf(&svg.bytes, &f.file)?,
+            });
+        }
+        Ok(out)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const SVG: &str = r##"<svg width="16cm" height="4cm" viewBox="0 0 520 130" xmlns="http://www.w3.org/2000/svg"><rect x="10" y="10" width="100" height="50" fill="#0072B2"/><text x="150" y="60" font-family="sans-serif" font-size="20">Minutes <tspan font-style="italic">t</tspan></text></svg>"##;
+
+    #[test]
+    fn a_png_is_300_dpi_at_16_cm_and_the_same_every_time() {
+        let a = png(SVG.as_bytes(), "test").unwrap();
+        assert_eq!(a, png(SVG.as_bytes(), "test").unwrap());
+        assert_eq!(&a[..8], b"\x89PNG\r\n\x1a\n");
+        let width = u32::from_be_bytes(a[16..20].try_into().unwrap());
+        let height = u32::from_be_bytes(a[20..24].try_into().unwrap());
+        // 16 cm at 300 DPI: 16 / 2.54 × 300 = 1889.8 → 1890 pixels.
+        assert_eq!(width, 1890);
+        assert_eq!(height, (1890.0_f64 * 130.0 / 520.0).round() as u32);
+        // pHYs right after IHDR: 11811 pixels per metre (300 DPI), unit metre.
+        assert_eq!(&a[37..41], b"pHYs");
+        assert_eq!(u32::from_be_bytes(a[41..45].try_into().unwrap()), 11811);
+        assert_eq!(a[49], 1);
+    }
+
+    #[test]
+    fn text_is_drawn_with_the_bundled_font() {
+        // Text must leave ink: without a font, usvg drops it silently.
+        let blank = SVG.replace("Minutes", "").replace(">t<", "><");
+        assert_ne!(
+            png(SVG.as_bytes(), "t").unwrap(),
+            png(blank.as_bytes(), "t").unwrap()
+        );
+        let pdf = pdf(SVG.as_bytes(), "t").unwrap();
+        assert!(pdf.starts_with(b"%PDF-"));
+        assert_ne!(pdf, super::pdf(blank.as_bytes(), "t").unwrap());
+        // Outlines: no font object, nothing from the machine's fonts.
+        assert!(!String::from_utf8_lossy(&pdf).contains("/FontFile"));
+        // The page is the figure's size: 16 cm = 453.54 pt wide, 4 cm high.
+        assert!(
+            String::from_utf8_lossy(&pdf).contains("/MediaBox [0 0 453.54333 113.38583]"),
+            "{}",
+            String::from_utf8_lossy(&pdf)
+                .lines()
+                .find(|l| l.contains("MediaBox"))
+                .unwrap_or("")
+        );
+    }
+
+    /// Many translucent layers: several graphics states in one resource
+    /// dictionary, whose order svg2pdf leaves to a hash map.
+    fn layered() -> String {
+        let mut svg =
+            String::from(r#"<svg width="520" height="130" xmlns="http://www.w3.org/2000/svg">"#);
+        for (i, o) in ["0.2", "0.4", "0.5", "0.7", "0.8", "0.9"]
+            .iter()
+            .enumerate()
+        {
+            svg.push_str(&format!(
+                r#"<circle cx="{}" cy="60" r="20" fill="blue" opacity="{o}"/><text x="{}" y="110" fill-opacity="{o}">−{i}</text>"#,
+                40 + 70 * i,
+                30 + 70 * i
+            ));
+        }
+        svg + "</svg>"
+    }
+
+    #[test]
+    fn a_pdf_is_the_same_bytes_every_time() {
+        let svg = layered();
+        let first = pdf(svg.as_bytes(), "t").unwrap();
+        // Each conversion draws new hash-map seeds; twenty of them agree.
+        for _ in 0..20 {
+            assert!(
+                first == pdf(svg.as_bytes(), "t").unwrap(),
+                "PDF bytes differ"
+            );
+        }
+        // And the dictionary really was sorted, not merely lucky.
+        let text = String::from_utf8_lossy(&first);
+        let gs: Vec<&str> = text
+            .split("/ExtGState <<")
+            .nth(1)
+            .unwrap()
+            .split(">>")
+            .next()
+            .unwrap()
+            .lines()
+            .map(str::trim)
+            .filter(|l| !l.is_empty())
+            .collect();
+        assert!(gs.len() > 2, "{gs:?}");
+        assert!(gs.windows(2).all(|w| w[0] <= w[1]), "{gs:?}");
+    }
+
+    #[test]
+    fn canonical_sorts_resource_entries_and_leaves_streams_alone() {
+        let pdf = b"1 0 obj\n<<\n  /ExtGState <<\n    /gs1 5 0 R\n    /gs0 4 0 R\n  >>\n>>\nstream\n  /XObject <<\n/b 2 0 R\n/a 1 0 R\n>>\nendstream\n".to_vec();
+        let out = canonical(pdf.clone());
+        assert_eq!(out.len(), pdf.len());
+        let text = String::from_utf8(out).unwrap();
+        assert!(text.contains("    /gs0 4 0 R\n    /gs1 5 0 R\n"));
+        assert!(text.contains("/b 2 0 R\n/a 1 0 R"), "a stream was changed");
+    }
+}
