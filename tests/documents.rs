@@ -11,19 +11,10 @@
 
 mod common;
 
-use common::{copy_dir, root, Case};
+use common::{copy_dir, root, Case, DEMOS};
 use pulldown_cmark::{Event, Parser, Tag, TagEnd};
 use std::io::Read;
 use std::process::Command;
-
-const DEMOS: [&str; 6] = [
-    "commute",
-    "espresso",
-    "loaves",
-    "picking",
-    "thermostat",
-    "tutoring",
-];
 
 /// Every demo run into a temporary folder.
 fn demos() -> Case {

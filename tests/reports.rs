@@ -4,7 +4,7 @@
 
 mod common;
 
-use common::{copy_dir, root, Case};
+use common::{copy_dir, root, Case, DEMOS};
 
 /// A temporary copy of `analyses/` (plans, locks, data).
 fn demos() -> Case {
@@ -12,15 +12,6 @@ fn demos() -> Case {
     copy_dir(&root().join("analyses"), &c.path().join("analyses"));
     c
 }
-
-const DEMOS: [&str; 6] = [
-    "commute",
-    "espresso",
-    "loaves",
-    "picking",
-    "thermostat",
-    "tutoring",
-];
 
 #[test]
 fn demo_reports_match_their_snapshots() {

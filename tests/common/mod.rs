@@ -7,6 +7,16 @@ pub mod fixture;
 use assert_cmd::Command;
 use std::path::{Path, PathBuf};
 
+/// The committed demo analyses, by stem (`analyses/<stem>.toml`).
+pub const DEMOS: [&str; 6] = [
+    "commute",
+    "espresso",
+    "loaves",
+    "picking",
+    "thermostat",
+    "tutoring",
+];
+
 /// A temporary folder holding one test case.
 pub struct Case {
     /// Keeps the folder alive for the test's duration.
