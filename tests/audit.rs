@@ -4,7 +4,7 @@
 
 mod common;
 
-use common::{copy_dir, root, Case};
+use common::{copy_dir, root, Case, DEMOS};
 use serde_json::Value;
 
 const PLAN: &str = r#"attest = 1
@@ -244,14 +244,7 @@ fn a_batch_run_keeps_going_past_a_broken_analysis() {
     assert!(text.starts_with("file"), "{text}");
     let broken = text.lines().find(|l| l.contains("broken.toml")).unwrap();
     assert!(broken.contains("failed"), "{broken}");
-    for name in [
-        "commute",
-        "espresso",
-        "loaves",
-        "picking",
-        "thermostat",
-        "tutoring",
-    ] {
+    for name in DEMOS {
         assert!(
             c.exists(&format!("out/{name}/report.html")),
             "{name} has no report"

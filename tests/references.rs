@@ -5,7 +5,7 @@
 
 mod common;
 
-use common::{copy_dir, root, Case};
+use common::{copy_dir, root, Case, DEMOS};
 
 const DATA: &str = "room,score\nnorth,12.1\nnorth,13.4\nnorth,11.8\nnorth,12.9\nnorth,14.0\nnorth,13.1\nnorth,12.2\nnorth,13.7\nsouth,10.9\nsouth,11.6\nsouth,12.0\nsouth,10.4\nsouth,11.1\nsouth,12.3\nsouth,10.8\nsouth,11.5\n";
 
@@ -146,14 +146,7 @@ fn robustness_checks_cite_the_methods_they_ran() {
 fn every_reference_is_cited_and_every_citation_is_listed() {
     let c = Case::new();
     copy_dir(&root().join("analyses"), &c.path().join("analyses"));
-    for stem in [
-        "commute",
-        "espresso",
-        "loaves",
-        "picking",
-        "thermostat",
-        "tutoring",
-    ] {
+    for stem in DEMOS {
         c.attest(&["run", "--quiet", &format!("analyses/{stem}.toml")])
             .success();
         let md = c.read(&format!("out/{stem}/report.md"));

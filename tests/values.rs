@@ -3,7 +3,7 @@
 
 mod common;
 
-use common::{copy_dir, root, Case};
+use common::{copy_dir, root, Case, DEMOS};
 use std::collections::BTreeMap;
 
 const PLAN: &str = r#"attest = 1
@@ -213,14 +213,7 @@ fn the_markdown_example_fills_from_values_json() {
 fn every_demos_tables_tex_compiles_in_one_document() {
     let c = Case::new();
     copy_dir(&root().join("analyses"), &c.path().join("analyses"));
-    let stems = [
-        "commute",
-        "espresso",
-        "loaves",
-        "picking",
-        "thermostat",
-        "tutoring",
-    ];
+    let stems = DEMOS;
     let mut doc = String::from(
         "\\documentclass{article}\n\\usepackage{booktabs,tabularx,array}\n\\begin{document}\n",
     );
