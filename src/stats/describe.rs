@@ -3,10 +3,13 @@
 //! The mean and central moments use two passes (mean first, then the
 //! deviations, with the compensating term of Chan, Golub & LeVeque 1983,
 //! "Algorithms for computing the sample variance", eq. 1.7), which keeps
-//! NIST StRD NumAcc4 to the digits float64 allows. Quartiles use linear
+//! NIST StRD NumAcc4 to the digits float64 allows. Every sum is exact and
+//! rounded once ([`super::exact`]), so the result does not depend on the
+//! order of the values. Quartiles use linear
 //! interpolation between order statistics (Hyndman & Fan 1996, type 7;
 //! common practice).
 
+use super::exact::{self, ExactSum};
 use super::{ensure_finite, StatsError};
 use serde::{Deserialize, Serialize};
 
@@ -65,15 +68,7 @@ pub(crate) fn describe_sorted(x: &[f64], sorted: &[f64]) -> Result<Descriptives,
     }
     let nf = n as f64;
     let mean = mean(x);
-    let (mut m2, mut m3, mut m4, mut comp) = (0.0, 0.0, 0.0, 0.0);
-    for &v in x {
-        let d = v - mean;
-        let d2 = d * d;
-        comp += d;
-        m2 += d2;
-        m3 += d2 * d;
-        m4 += d2 * d2;
-    }
+    let [comp, mut m2, m3, m4] = central_sums(sorted, mean);
     // Chan, Golub & LeVeque's correction removes the rounding error of the mean.
     m2 -= comp * comp / nf;
     let var = if n > 1 { Some(m2 / (nf - 1.0)) } else { None };
@@ -126,29 +121,39 @@ fn shape(n: f64, m2: f64, m3: f64, m4: f64) -> (Option<f64>, Option<f64>) {
     (skew, kurt)
 }
 
-/// Arithmetic mean by two passes: the naive mean, then the mean of the
-/// residuals added back (a cheap correction that keeps NumAcc-type data
-/// exact to rounding).
-pub(crate) fn mean(x: &[f64]) -> f64 {
-    let n = x.len() as f64;
-    let m0 = x.iter().sum::<f64>() / n;
-    let r = x.iter().map(|v| v - m0).sum::<f64>() / n;
-    m0 + r
+/// The exact sums Σd, Σd², Σd³, Σd⁴ of the deviations d = v − `centre`,
+/// each d and power rounded as a double and the sums rounded once. The
+/// values are taken as runs of equal values, so a sorted sample with many
+/// ties costs one term per distinct value.
+fn central_sums(sorted: &[f64], centre: f64) -> [f64; 4] {
+    let mut s = [(); 4].map(|_| ExactSum::new());
+    for (v, c) in super::runs::of_sorted(sorted) {
+        let d = v - centre;
+        let d2 = d * d;
+        s[0].add_times(d, c);
+        s[1].add_times(d2, c);
+        s[2].add_times(d2 * d, c);
+        s[3].add_times(d2 * d2, c);
+    }
+    s.map(|mut a| a.value())
 }
 
-/// Sample variance with denominator n − 1 (two-pass, corrected). `None` for n < 2.
+/// Arithmetic mean from the exact sum, within about half a unit in the
+/// last place ([`exact::mean_of`]); independent of the order of `x`.
+pub(crate) fn mean(x: &[f64]) -> f64 {
+    exact::mean(x.iter().copied(), x.len())
+}
+
+/// Sample variance with denominator n − 1 (two-pass, corrected, exact
+/// sums). `None` for n < 2.
 pub(crate) fn variance(x: &[f64]) -> Option<f64> {
     let n = x.len();
     if n < 2 {
         return None;
     }
     let m = mean(x);
-    let (mut ss, mut comp) = (0.0, 0.0);
-    for &v in x {
-        let d = v - m;
-        ss += d * d;
-        comp += d;
-    }
+    let comp = exact::sum(x.iter().map(|v| v - m));
+    let ss = exact::sum(x.iter().map(|v| (v - m) * (v - m)));
     Some((ss - comp * comp / n as f64) / (n as f64 - 1.0))
 }
 

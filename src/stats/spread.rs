@@ -7,12 +7,13 @@
 //! equality of variances", in Olkin (ed.), *Contributions to Probability
 //! and Statistics*, 278–292; Brown & Forsythe (1974), "Robust tests for
 //! the equality of variances", JASA 69, 364–367. With two groups the F
-//! statistic has 1 and N − 2 degrees of freedom. Means are the two-pass
-//! means of [`super::describe`], so data with many shared leading digits
-//! keep their precision.
+//! statistic has 1 and N − 2 degrees of freedom. Means come from exact
+//! sums, as in [`super::describe`], so data with many shared leading
+//! digits keep their precision and row order changes no digit.
 
 use super::describe::{mean, median};
 use super::dist::f_sf;
+use super::exact;
 use super::{ensure_finite, StatsError};
 use serde::{Deserialize, Serialize};
 
@@ -112,16 +113,14 @@ impl Deviations<'_> {
         self.g.iter().map(|v| (v - self.c).abs() / self.scale)
     }
 
-    /// Corrected two-pass mean, as [`mean`] computes it on a stored copy.
+    /// The mean from the exact sum, as [`mean`] computes it on a stored
+    /// copy (independent of the order of the values).
     fn mean(&self) -> f64 {
-        let n = self.g.len() as f64;
-        let m0 = self.iter().sum::<f64>() / n;
-        let r = self.iter().map(|v| v - m0).sum::<f64>() / n;
-        m0 + r
+        exact::mean(self.iter(), self.g.len())
     }
 
     fn sum_sq(&self, m: f64) -> f64 {
-        self.iter().map(|v| (v - m).powi(2)).sum()
+        exact::sum(self.iter().map(|v| (v - m).powi(2)))
     }
 }
 

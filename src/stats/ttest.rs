@@ -16,6 +16,7 @@
 
 use super::describe::{mean, variance};
 use super::dist::{log_t_sf, t_quantile, t_sf};
+use super::exact::{self, ExactSum};
 use super::{ensure_finite, p_from_symmetric, Alternative, Interval, StatsError};
 
 /// Result of a t-test.
@@ -133,7 +134,7 @@ pub fn one_sample_t(
     }
     ensure_finite(x)?;
     ensure_finite(&[reference])?;
-    let shift = x[0];
+    let shift = smallest(x);
     let centred: Vec<f64> = x.iter().map(|v| v - shift).collect();
     let n = x.len() as f64;
     let var = variance(&centred).unwrap_or(0.0);
@@ -177,26 +178,33 @@ pub(crate) struct TwoGroups {
 }
 
 /// Mean and sum of squared deviations of `x − shift`, computed as
-/// [`mean`] and [`variance`] would on the shifted copy (a corrected
-/// two-pass mean, then the corrected two-pass sum of squares; Chan, Golub
-/// & LeVeque 1983, "Algorithms for computing the sample variance", Amer.
+/// [`mean`] and [`variance`] would on the shifted copy (the mean of the
+/// exact sum, then the corrected two-pass sum of squares; Chan, Golub &
+/// LeVeque 1983, "Algorithms for computing the sample variance", Amer.
 /// Statist. 37(3), 242–247), without making the copy. The sum of squares
-/// is 0 for a single value.
+/// is 0 for a single value. Every sum is exact ([`super::exact`]), so the
+/// result does not depend on the order of `x`.
 fn shifted_moments(x: &[f64], shift: f64) -> (f64, f64) {
     let n = x.len() as f64;
-    let m0 = x.iter().map(|v| v - shift).sum::<f64>() / n;
-    let r = x.iter().map(|v| (v - shift) - m0).sum::<f64>() / n;
-    let m = m0 + r;
+    let m = exact::mean(x.iter().map(|v| v - shift), x.len());
     if x.len() < 2 {
         return (m, 0.0);
     }
-    let (mut ss, mut comp) = (0.0, 0.0);
+    let (mut ss, mut comp) = (ExactSum::new(), ExactSum::new());
     for v in x {
         let d = (v - shift) - m;
-        ss += d * d;
-        comp += d;
+        ss.add(d * d);
+        comp.add(d);
     }
-    (m, (ss - comp * comp / n).max(0.0))
+    let comp = comp.value();
+    (m, (ss.value() - comp * comp / n).max(0.0))
+}
+
+/// The smallest value: the common shift that centres a sample near zero
+/// (exact for values of like magnitude), chosen by value rather than by
+/// position so that it does not depend on the order of the rows.
+fn smallest(x: &[f64]) -> f64 {
+    x.iter().copied().min_by(f64::total_cmp).unwrap_or(0.0)
 }
 
 impl TwoGroups {
@@ -208,9 +216,10 @@ impl TwoGroups {
             }
             ensure_finite(g)?;
         }
-        // Both groups shifted by x[0] (exact for values of like magnitude),
-        // so the difference of means does not lose digits to a large offset.
-        let shift = x[0];
+        // Both groups shifted by the smallest value of x (exact for values
+        // of like magnitude), so the difference of means does not lose
+        // digits to a large offset.
+        let shift = smallest(x);
         let (m1, ss1) = shifted_moments(x, shift);
         let (m2, ss2) = shifted_moments(y, shift);
         Ok(TwoGroups {
