@@ -13,6 +13,7 @@
 //! | 3 | an internal error or an I/O failure of the machine (disk full, …) |
 //! | 4 | `verify` cannot confirm an outside record the report claims (a git commit that is gone); nothing was found to differ |
 //! | 5 | `run` or `rehearse` wrote its outputs, but at least one hypothesis could not be computed (its values leave the test undefined); the report says which and why |
+//! | 6 | the database the plan reads from could not be reached, or refused the plan's query |
 
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -29,6 +30,9 @@ pub enum Kind {
     /// `verify` found nothing changed but cannot confirm an outside record
     /// the report claims, such as its git commit (exit 4).
     Unconfirmed,
+    /// The database a plan reads from could not be reached or refused the
+    /// query (exit 6).
+    Source,
 }
 
 /// Exit code of a `run` or `rehearse` that wrote its outputs while at
@@ -43,6 +47,7 @@ impl Kind {
             Kind::Verification => 2,
             Kind::Internal => 3,
             Kind::Unconfirmed => 4,
+            Kind::Source => 6,
         }
     }
 }

@@ -58,20 +58,21 @@ pub fn lock_path(analysis: &Path) -> PathBuf {
 
 impl LockFile {
     /// Seals a plan now (or at `SOURCE_DATE_EPOCH`).
-    pub fn seal(file: &AnalysisFile, data_path: &Path) -> Result<LockFile> {
-        let data_hash = match std::fs::metadata(data_path) {
-            Err(e) if e.kind() == std::io::ErrorKind::NotFound => None,
-            _ => {
-                let file = crate::files::open_regular(
-                    data_path,
-                    "read the data file",
-                    crate::files::Links::Follow,
-                )?;
-                Some(
-                    hash_stream(file)
-                        .map_err(|e| Failure::io("read the data file", data_path, &e))?,
-                )
-            }
+    /// `data_path` is `None` for data in a database, which a lock never reads.
+    pub fn seal(file: &AnalysisFile, data_path: Option<&Path>) -> Result<LockFile> {
+        let data_hash = match data_path {
+            None => None,
+            Some(p) => match std::fs::metadata(p) {
+                Err(e) if e.kind() == std::io::ErrorKind::NotFound => None,
+                _ => {
+                    let file = crate::files::open_regular(
+                        p,
+                        "read the data file",
+                        crate::files::Links::Follow,
+                    )?;
+                    Some(hash_stream(file).map_err(|e| Failure::io("read the data file", p, &e))?)
+                }
+            },
         };
         let mut lock = LockFile {
             lock_format: LOCK_FORMAT,

@@ -86,13 +86,15 @@ pub(crate) fn lock(
         return Err(Failure::input(format!("{} is already locked ({} exists)", path.display(), lock_path.display()))
             .help("a lock is never overwritten; to change the plan, edit it and declare a [[deviation]], or start a new analysis file"));
     }
-    let data_path = plan_dir(path).join(&file.plan.data.path);
-    if data_path.exists() {
+    // A database source is not read at the lock: there is no file to
+    // hash, and the lock records the query (in the plan) instead.
+    let data_path = file.plan.data.file().map(|f| plan_dir(path).join(f));
+    if data_path.as_ref().is_some_and(|p| p.exists()) {
         // Columns and levels that are not there are found now, from the
         // header and the labels alone, not after the lock at `run`.
         data::check_labels(&file.plan, &plan_dir(path))?;
     }
-    let sealed = LockFile::seal(&file, &data_path)?;
+    let sealed = LockFile::seal(&file, data_path.as_deref())?;
     let docs = plan_documents(&sealed, templates)?;
     let out_dir = out
         .map(Path::to_path_buf)
@@ -131,7 +133,7 @@ pub(crate) fn lock(
         &lock_path,
         sealed.to_text().as_bytes(),
         &sealed.locked_at,
-        &data_path,
+        data_path.as_deref(),
     );
     Ok(LockOutcome {
         lock: sealed,
@@ -172,7 +174,11 @@ fn lock_state(
             &lock_path,
             &bytes,
             &lock.locked_at,
-            &plan_dir(&file.path).join(&file.plan.data.path),
+            file.plan
+                .data
+                .file()
+                .map(|f| plan_dir(&file.path).join(f))
+                .as_deref(),
         ),
         evidence: crate::seal::evidence(&lock_path),
     };
@@ -289,9 +295,10 @@ fn results_of(
         plan: plan.clone(),
         data: DataRecord {
             path: plan.data.path.clone(),
+            source: plan.data.source,
             sha256: ds.sha256.clone(),
             rows: ds.rows,
-            outside_plan_folder: outside(dir, &ds.path),
+            outside_plan_folder: plan.data.source.is_none() && outside(dir, &ds.path),
         },
         hypotheses,
         not_computed,

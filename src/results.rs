@@ -167,9 +167,14 @@ pub struct LockRecord {
 /// The data file as read.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct DataRecord {
-    /// Path relative to the analysis file, as the plan gives it.
+    /// Path relative to the analysis file, as the plan gives it (empty for
+    /// data read from a database).
     pub path: String,
-    /// SHA-256 of the file's bytes.
+    /// The database engine the rows came from, when not from a file.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<crate::plan::Engine>,
+    /// SHA-256 of the file's bytes, or for a database source of the
+    /// canonical count table the query returned (docs/database-sources.md).
     pub sha256: String,
     /// Data rows read (header excluded).
     pub rows: usize,

@@ -238,6 +238,7 @@ pub fn verify(
     target: &Path,
     plan: Option<&Path>,
     templates: Option<&Path>,
+    run_query: bool,
 ) -> Result<Verification> {
     let (dir, results_path) = locate(target)?;
     let text = files::read_bounded(
@@ -296,28 +297,36 @@ pub fn verify(
         items.extend(lock_items(&analysis, &recorded, &hash)?);
     }
 
-    let data_path = analysis
-        .parent()
-        .unwrap_or(Path::new(""))
-        .join(&file.plan.data.path);
-    within(&root, &data_path, "data file")?;
-    let file_handle = files::open_regular(&data_path, "read the data file", Links::Follow)?;
-    let h = crate::lock::hash_stream(file_handle)
-        .map_err(|e| Failure::io("read the data file", &data_path, &e))?;
-    items.push(if h == recorded.data.sha256 {
-        Item::same("data")
-    } else {
-        Item::changed(
-            "data",
-            format!(
-                "{} sha256 {} → {}",
-                crate::error::clean(&file.plan.data.path),
-                short(&recorded.data.sha256),
-                short(&h)
-            ),
-            true,
-        )
-    });
+    let engine = file.plan.data.source;
+    // The data line stands here in the list; its hash comes from the run.
+    let data_at = items.len();
+    match engine {
+        Some(e) if !run_query => {
+            return Err(Failure::input(format!(
+                "the report's data are the rows of a query on {}, and verify connects to no database it was not told to",
+                e.display()
+            ))
+            .help("pass --run-query to let verify connect to the database in the plan's [data] `connect` and run its `query` again; the folder names both, so do this only for a plan you trust"));
+        }
+        Some(crate::plan::Engine::Duckdb) => {
+            if let Some(db) = &file.plan.data.connect {
+                let db = analysis.parent().unwrap_or(Path::new("")).join(db);
+                within(&root, &db, "database file")?;
+            }
+        }
+        Some(crate::plan::Engine::Postgres) => {}
+        None => {
+            let data_path = analysis
+                .parent()
+                .unwrap_or(Path::new(""))
+                .join(&file.plan.data.path);
+            within(&root, &data_path, "data file")?;
+            // Refused now if it is no regular file; its hash comes from the
+            // run below, which reads and hashes the bytes it analyses (one
+            // read of the data, not two).
+            files::open_regular(&data_path, "read the data file", Links::Follow)?;
+        }
+    }
 
     let version = env!("CARGO_PKG_VERSION");
     items.push(if recorded.version == version {
@@ -334,6 +343,16 @@ pub fn verify(
     });
 
     let mut fresh = pipeline::compute(&analysis, unlocked)?;
+    // The data file's hash, or the count table's for a query, as the run
+    // just computed it.
+    let what = match engine {
+        Some(e) => crate::data::source::source_name(e),
+        None => file.plan.data.path.clone(),
+    };
+    items.insert(
+        data_at,
+        data_item(&fresh.data.sha256, &recorded.data.sha256, &what),
+    );
     // Committing the lock after the run is progress, not a change: compare
     // outputs as of the recorded witness and report the current one.
     if let Some(now) = fresh.lock_record.as_mut() {
@@ -371,6 +390,24 @@ pub fn verify(
     let outputs = pipeline::render_outputs(&fresh, templates, &analysis)?;
     items.extend(output_items(&dir, &outputs)?);
     Ok(Verification { analysis, items })
+}
+
+/// The data line: the hash read now against the one the report records.
+fn data_item(now: &str, then: &str, name: &str) -> Item {
+    if now == then {
+        Item::same("data")
+    } else {
+        Item::changed(
+            "data",
+            format!(
+                "{} sha256 {} → {}",
+                crate::error::clean(name),
+                short(then),
+                short(now)
+            ),
+            true,
+        )
+    }
 }
 
 /// The witness line: the commit the report names must still be the lock's

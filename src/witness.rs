@@ -251,7 +251,12 @@ fn signature_of(commit: &gix::Commit<'_>) -> Signature {
 /// Asks git history about the lock at `lock_path` (whose bytes are
 /// `lock_bytes` and whose own date is `locked_at`), and about the data file
 /// at `data_path`.
-pub fn witness(lock_path: &Path, lock_bytes: &[u8], locked_at: &str, data_path: &Path) -> Witness {
+pub fn witness(
+    lock_path: &Path,
+    lock_bytes: &[u8],
+    locked_at: &str,
+    data_path: Option<&Path>,
+) -> Witness {
     let dir = match lock_path.parent() {
         Some(d) if !d.as_os_str().is_empty() => d,
         _ => Path::new("."),
@@ -262,7 +267,7 @@ pub fn witness(lock_path: &Path, lock_bytes: &[u8], locked_at: &str, data_path: 
     let Some(lock_rel) = relative(&r.root, lock_path) else {
         return Witness::NoGit;
     };
-    let data_rel = relative(&r.root, data_path);
+    let data_rel = data_path.and_then(|p| relative(&r.root, p));
     let Ok(blob) = gix::objs::compute_hash(r.repo.object_hash(), gix::objs::Kind::Blob, lock_bytes)
     else {
         return Witness::NotCommitted;
@@ -383,7 +388,7 @@ mod tests {
             &p,
             &std::fs::read(&p).unwrap(),
             locked_at,
-            &dir.join("d.csv"),
+            Some(&dir.join("d.csv")),
         )
     }
 

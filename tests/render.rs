@@ -87,6 +87,9 @@ fn plan() -> Plan {
             decimal: '.',
             missing: vec!["".into(), "NA".into()],
             sheet: None,
+            source: None,
+            connect: None,
+            query: None,
         },
         exclude: vec![ExcludeRule {
             reason: "plants lost to blight before fruiting".into(),
@@ -428,6 +431,7 @@ fn scenario() -> Results {
         plan: plan(),
         data: DataRecord {
             path: "garden.csv".into(),
+            source: None,
             sha256: "0d1e2f3a4b5c6d7e8f9a0b1c2d3e4f5a6b7c8d9e0f1a2b3c4d5e6f7a8b9c0d1e".into(),
             rows: 70,
             outside_plan_folder: false,

@@ -205,6 +205,11 @@ pub(crate) enum Command {
         /// certificates (PEM).
         #[arg(long, value_name = "FILE")]
         tsa_roots: Option<PathBuf>,
+        /// For a plan whose data are in a database: connect to the database
+        /// its [data] names and run its query again. The folder names both,
+        /// so pass this only for a plan you trust.
+        #[arg(long)]
+        run_query: bool,
     },
 }
 

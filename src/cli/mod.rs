@@ -285,10 +285,12 @@ fn dispatch(cli: Cli) -> Result<i32> {
             templates,
             signers,
             tsa_roots,
+            run_query,
         } => {
             let trust = crate::seal::Options { signers, tsa_roots };
             trust.read()?;
-            let mut v = crate::verify::verify(&report, plan.as_deref(), templates.as_deref())?;
+            let mut v =
+                crate::verify::verify(&report, plan.as_deref(), templates.as_deref(), run_query)?;
             let lock = crate::lock::lock_path(&v.analysis);
             for f in crate::seal::check_all(&lock, &trust)? {
                 use crate::seal::Status;

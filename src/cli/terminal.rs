@@ -18,7 +18,10 @@ pub(crate) fn plan_summary(f: &AnalysisFile) -> String {
         p.confidence,
         p.correction.as_str(),
         p.check_alpha,
-        clean(&p.data.path)
+        match p.data.source {
+            Some(e) => clean(&crate::data::source::source_name(e)).into_owned(),
+            None => clean(&p.data.path).into_owned(),
+        }
     );
     for r in &p.exclude {
         s.push_str(&format!(

@@ -2,8 +2,10 @@
 //! apply the preregistered exclusions, and hand each hypothesis its values.
 //!
 //! The work is split by step: [`read`] streams delimited text, [`xlsx`]
-//! reads a worksheet, both through [`cell`] (one place that decides what a
-//! cell means) into the columns below; [`exclude`] applies the `[[exclude]]`
+//! reads a worksheet and [`parquet`](mod@parquet) a Parquet file, all
+//! through [`cell`] (one place that decides what a cell means) into the
+//! columns below; [`source`] runs the plan's query on a database and
+//! hands back its count table as rows; [`exclude`] applies the `[[exclude]]`
 //! rules once per file; [`select`](mod@select) pairs and groups the rows of
 //! one hypothesis and counts where every row went.
 //!
@@ -13,8 +15,10 @@
 
 pub(crate) mod cell;
 pub(crate) mod exclude;
+pub(crate) mod parquet;
 pub mod read;
 pub(crate) mod select;
+pub(crate) mod source;
 pub(crate) mod xlsx;
 
 use crate::error::{Failure, Result};
@@ -225,6 +229,10 @@ pub fn load(plan: &Plan, plan_dir: &Path) -> Result<Dataset> {
 /// value. Every column the plan names must be in the header and every
 /// level it names among the labels, refused with the messages `run` gives.
 pub(crate) fn check_labels(plan: &Plan, plan_dir: &Path) -> Result<()> {
+    if plan.data.source.is_some() {
+        // `lock` never connects to a database: the query runs at `run`.
+        return Ok(());
+    }
     // A column used only as numbers is located in the header and its cells
     // are skipped unread (neither numbers nor labels are kept).
     let wanted: Vec<Use> = used_columns(plan)
@@ -254,29 +262,23 @@ pub(crate) fn check_labels(plan: &Plan, plan_dir: &Path) -> Result<()> {
 /// Reads the `wanted` columns of the plan's data file, no rule applied.
 fn read_columns(plan: &Plan, plan_dir: &Path, wanted: &[Use]) -> Result<Dataset> {
     let path = plan_dir.join(&plan.data.path);
-    let display = plan.data.path.clone();
+    let display = match plan.data.source {
+        Some(engine) => source::source_name(engine),
+        None => plan.data.path.clone(),
+    };
     let wanted = wanted.to_vec();
     let (table, sha256) = match plan.data.format {
+        DataFormat::Query => source::read_query(&plan.data, plan_dir, &wanted)?,
         DataFormat::Delimited => read::read_delimited_file(&path, &display, &plan.data, &wanted)?,
-        DataFormat::Xlsx => {
-            let mut bytes = Vec::new();
-            std::io::Read::read_to_end(
-                &mut crate::files::open_regular(
-                    &path,
-                    "read the data file",
-                    crate::files::Links::Follow,
-                )
-                .map_err(|f| {
-                    f.help("check `path` in [data]; it is relative to the analysis file")
-                })?,
-                &mut bytes,
-            )
-            .map_err(|e| Failure::io("read the data file", &path, &e))?;
+        DataFormat::Xlsx | DataFormat::Parquet => {
+            let bytes = read_whole(&path)?;
             let sha256 = crate::plan::canonical::sha256_hex(&bytes);
-            (
-                xlsx::read_xlsx(bytes, &display, &plan.data, &wanted)?,
-                sha256,
-            )
+            let table = if plan.data.format == DataFormat::Xlsx {
+                xlsx::read_xlsx(bytes, &display, &plan.data, &wanted)?
+            } else {
+                parquet::read_parquet(bytes, &display, &plan.data, &wanted)?
+            };
+            (table, sha256)
         }
     };
     let ds = Dataset {
@@ -290,6 +292,18 @@ fn read_columns(plan: &Plan, plan_dir: &Path, wanted: &[Use]) -> Result<Dataset>
         excluded_by: Vec::new(),
     };
     Ok(ds)
+}
+
+/// A whole data file (workbooks and Parquet files are read from memory).
+fn read_whole(path: &Path) -> Result<Vec<u8>> {
+    let mut bytes = Vec::new();
+    std::io::Read::read_to_end(
+        &mut crate::files::open_regular(path, "read the data file", crate::files::Links::Follow)
+            .map_err(|f| f.help("check `path` in [data]; it is relative to the analysis file"))?,
+        &mut bytes,
+    )
+    .map_err(|e| Failure::io("read the data file", path, &e))?;
+    Ok(bytes)
 }
 
 /// What a reader hands back: the used columns and where each row came from.

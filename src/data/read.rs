@@ -667,6 +667,9 @@ mod tests {
             decimal: '.',
             missing: vec![String::new(), "NA".into()],
             sheet: None,
+            source: None,
+            connect: None,
+            query: None,
         }
     }
 

@@ -66,10 +66,12 @@ pub struct Plan {
     pub hypotheses: Vec<Hypothesis>,
 }
 
-/// How to find and read the data file.
+/// How to find and read the data: a file at `path`, or the result of a
+/// query on a database engine (`source`, `connect`, `query`).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct DataSpec {
-    /// Path relative to the analysis file.
+    /// Path relative to the analysis file (empty for a database source).
+    #[serde(default, skip_serializing_if = "String::is_empty")]
     pub path: String,
     /// File format; inferred from the extension.
     pub format: DataFormat,
@@ -82,6 +84,47 @@ pub struct DataSpec {
     /// Worksheet name for spreadsheets (first sheet when absent).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub sheet: Option<String>,
+    /// The database engine the data are read from; absent for a file.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<Engine>,
+    /// Where the engine is: a libpq connection string for PostgreSQL, a
+    /// database file (relative to the analysis file) for DuckDB. Never a
+    /// password: the plan is hashed, printed and shared.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub connect: Option<String>,
+    /// The query whose result the plan's column names refer to.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub query: Option<String>,
+}
+
+impl DataSpec {
+    /// The data file's path, or `None` when the data come from a database.
+    pub fn file(&self) -> Option<&str> {
+        match self.source {
+            None => Some(&self.path),
+            Some(_) => None,
+        }
+    }
+}
+
+/// A database engine that runs the plan's query and returns counts.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Engine {
+    /// A PostgreSQL server, reached by a libpq connection string.
+    Postgres,
+    /// DuckDB, embedded (in attest builds with the `duckdb` feature).
+    Duckdb,
+}
+
+impl Engine {
+    /// The engine's name as reports print it.
+    pub fn display(self) -> &'static str {
+        match self {
+            Engine::Postgres => "PostgreSQL",
+            Engine::Duckdb => "DuckDB",
+        }
+    }
 }
 
 /// Supported data formats.
@@ -92,6 +135,10 @@ pub enum DataFormat {
     Delimited,
     /// An Excel workbook (`.xlsx`).
     Xlsx,
+    /// An Apache Parquet file (`.parquet`).
+    Parquet,
+    /// The result of a query on a database engine (`source`).
+    Query,
 }
 
 /// One preregistered exclusion rule.

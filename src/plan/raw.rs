@@ -85,6 +85,12 @@ pub(crate) struct RawData {
     pub missing: Option<Vec<String>>,
     /// Worksheet name.
     pub sheet: Option<Spanned<String>>,
+    /// `postgres` or `duckdb`: the data are a query's result.
+    pub source: Option<Spanned<String>>,
+    /// Connection string (PostgreSQL) or database file (DuckDB).
+    pub connect: Option<Spanned<String>>,
+    /// The query.
+    pub query: Option<Spanned<String>>,
 }
 
 /// `[[exclude]]`.

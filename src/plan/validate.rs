@@ -9,6 +9,11 @@ use std::collections::{BTreeMap, HashSet};
 use std::path::Path;
 use toml::Spanned;
 
+/// The cell texts that mean "missing" when a plan lists none.
+fn default_missing() -> Vec<String> {
+    ["", "NA", "N/A", "NaN", "."].map(String::from).to_vec()
+}
+
 /// The most hypotheses one analysis file may declare. Each becomes a
 /// report section with figures (about 150 KB of output and a few MB of
 /// memory at most), so this bounds a run's memory and output; a
@@ -516,6 +521,19 @@ impl Checker<'_> {
         let span = d.span();
         let (l, c) = line_col(self.text, span.start);
         let d = d.into_inner();
+        if let Some(src) = &d.source {
+            return self.query_source(src, &d, (l, c));
+        }
+        if let Some(k) = d.connect.as_ref().or(d.query.as_ref()) {
+            let key = if d.connect.is_some() {
+                "connect"
+            } else {
+                "query"
+            };
+            return Err(self
+                .at(k, format!("`{key}` applies only when [data] names a `source`"))
+                .help("add `source = \"postgres\"` or `source = \"duckdb\"`, or remove `connect` and `query` to read the file at `path`"));
+        }
         let path = match d.path {
             Some(p) if !p.get_ref().trim().is_empty() => p.into_inner(),
             _ => {
@@ -537,6 +555,7 @@ impl Checker<'_> {
             "tsv" | "tab" => (DataFormat::Delimited, '\t'),
             "txt" => (DataFormat::Delimited, '\t'),
             "xlsx" => (DataFormat::Xlsx, ','),
+            "parquet" => (DataFormat::Parquet, ','),
             other => {
                 let f = Failure::input(if d.format.is_some() {
                     format!("`format` = \"{}\" is not a known data format", shown(other))
@@ -547,7 +566,7 @@ impl Checker<'_> {
                     Some(s) => self.at(s, f.what),
                     None => f.at(self.path, l, Some(c)),
                 };
-                return Err(f.help("set `format` to one of: csv, tsv, txt, xlsx"));
+                return Err(f.help("set `format` to one of: csv, tsv, txt, xlsx, parquet"));
             }
         };
         let delimiter = match &d.delimiter {
@@ -601,7 +620,7 @@ impl Checker<'_> {
             .at(self.path, l, Some(c))
             .help("files with decimal commas usually use `delimiter = \";\"`"));
         }
-        if format == DataFormat::Delimited {
+        if format != DataFormat::Xlsx {
             if let Some(s) = &d.sheet {
                 return Err(self
                     .at(s, "`sheet` only applies to spreadsheet (xlsx) data")
@@ -613,16 +632,100 @@ impl Checker<'_> {
             format,
             delimiter,
             decimal,
-            missing: d.missing.unwrap_or_else(|| {
-                vec![
-                    String::new(),
-                    "NA".into(),
-                    "N/A".into(),
-                    "NaN".into(),
-                    ".".into(),
-                ]
-            }),
+            missing: d.missing.unwrap_or_else(default_missing),
             sheet: d.sheet.map(Spanned::into_inner),
+            source: None,
+            connect: None,
+            query: None,
+        })
+    }
+
+    /// `[data]` with a `source`: the engine, where it is, and the query.
+    fn query_source(
+        &self,
+        src: &Spanned<String>,
+        d: &RawData,
+        (l, c): (usize, usize),
+    ) -> Result<DataSpec> {
+        let engine = match src.get_ref().as_str() {
+            "postgres" => Engine::Postgres,
+            "duckdb" => Engine::Duckdb,
+            other => {
+                return Err(self
+                    .at(src, format!("`source` = \"{}\" is not a known engine", shown(other)))
+                    .help("set `source` to \"postgres\" or \"duckdb\", or remove it to read the file at `path`"))
+            }
+        };
+        let file_keys = [
+            ("path", &d.path),
+            ("format", &d.format),
+            ("delimiter", &d.delimiter),
+            ("decimal", &d.decimal),
+            ("sheet", &d.sheet),
+        ];
+        if let Some((key, Some(v))) = file_keys.iter().find(|(_, v)| v.is_some()) {
+            return Err(self
+                .at(
+                    v,
+                    format!("`{key}` does not apply when the data come from `source`"),
+                )
+                .help(format!(
+                    "remove `{key}`; the query says which rows the plan reads"
+                )));
+        }
+        let query = match &d.query {
+            Some(q) => {
+                let text = q
+                    .get_ref()
+                    .trim()
+                    .trim_end_matches([';', ' ', '\t', '\n', '\r']);
+                if text.is_empty() {
+                    return Err(self
+                        .at(q, "`query` is empty")
+                        .help("write the query whose columns the plan names, e.g. `query = \"SELECT arm, score FROM visits\"`"));
+                }
+                if text.contains(';') {
+                    return Err(self
+                        .at(q, "`query` holds more than one statement (a `;`)")
+                        .help("write one SELECT (or WITH … SELECT) without `;`; attest runs it inside its own counting query"));
+                }
+                text.to_string()
+            }
+            None => {
+                return Err(Failure::input(format!(
+                    "[data] names `source` = \"{}\" but has no `query`",
+                    src.get_ref()
+                ))
+                .at(self.path, l, Some(c))
+                .help("add `query = \"SELECT …\"`; the plan's column names refer to its result"))
+            }
+        };
+        let connect = match (&d.connect, engine) {
+            (Some(k), _) => {
+                if let Err(why) = crate::data::source::check_connect(k.get_ref(), engine) {
+                    return Err(self.at(k, why).help(
+                        "keep secrets out of the plan (it is hashed, printed and shared): set PGPASSWORD or use a password file (~/.pgpass or PGPASSFILE)",
+                    ));
+                }
+                Some(k.get_ref().clone())
+            }
+            (None, Engine::Postgres) => {
+                return Err(Failure::input("[data] names `source` = \"postgres\" but has no `connect`")
+                    .at(self.path, l, Some(c))
+                    .help("add a libpq connection string without a password, e.g. `connect = \"host=/run/postgresql dbname=trial\"`"))
+            }
+            (None, Engine::Duckdb) => None,
+        };
+        Ok(DataSpec {
+            path: String::new(),
+            format: DataFormat::Query,
+            delimiter: ',',
+            decimal: '.',
+            missing: d.missing.clone().unwrap_or_else(default_missing),
+            sheet: None,
+            source: Some(engine),
+            connect,
+            query: Some(query),
         })
     }
 

@@ -68,6 +68,11 @@ pub(super) fn render(
         authors => p.authors.join(", "),
         summary => p.summary.as_deref().map(|s| md(escape_paragraphs(s))),
         data_path => p.data.path.clone(),
+        data_source => p.data.source.map(|e| md(format!(
+            "the rows that this query returns on {}: {}",
+            e.display(),
+            escape(p.data.query.as_deref().unwrap_or_default())
+        ))),
         blocks => blocks,
         thresholds => md(format!(
             "Each hypothesis is judged at α = {}; intervals are {} intervals; {}. Seed for anything resampled: {}.",

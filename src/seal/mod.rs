@@ -249,7 +249,14 @@ pub(crate) fn stamp_data(analysis: &Path, urls: &[String]) -> Result<String> {
             analysis.display()
         )));
     }
-    let data = lock_dir(analysis).join(&file.plan.data.path);
+    let Some(data_file) = file.plan.data.file() else {
+        return Err(Failure::input(format!(
+            "{} reads its data from a database: there is no data file to stamp",
+            analysis.display()
+        ))
+        .help("stamp the lock instead (it holds the query); each run's results.json records the SHA-256 of the count table the query returned"));
+    };
+    let data = lock_dir(analysis).join(data_file);
     let bytes = std::fs::read(&data).map_err(|e| Failure::io("read the data file", &data, &e))?;
     let tokens = timestamp::fetch_all(urls, &crate::plan::canonical::sha256_hex(&bytes))?;
     stored_lines(&lock_path, timestamp::Covers::Data, &tokens)

@@ -843,7 +843,7 @@ pub(crate) fn summary(lock_path: &Path, lock_bytes: &[u8]) -> Vec<super::Evidenc
 
 /// The SHA-256 of the data file the lock's plan names, if it can be read.
 fn data_hash(lock_path: &Path, lock: &crate::lock::LockFile) -> Option<String> {
-    let path = lock_dir(lock_path).join(&lock.plan.data.path);
+    let path = lock_dir(lock_path).join(lock.plan.data.file()?);
     let meta = std::fs::metadata(&path).ok()?;
     if !meta.is_file() {
         return None;

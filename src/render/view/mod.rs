@@ -415,7 +415,9 @@ fn status(r: &Results) -> String {
 fn data_notes(r: &Results) -> Vec<String> {
     let mut notes = Vec::new();
     if let Some(l) = &r.lock_record {
-        if l.data_existed {
+        if r.data.source.is_some() {
+            notes.push("A lock never reads a database: it records the query, and the count table's SHA-256 above is what a later run must reproduce.".to_string());
+        } else if l.data_existed {
             notes.push("The data file already existed when the plan was locked.".to_string());
             if let Some(h) = &l.data_sha256 {
                 if *h != r.data.sha256 {
