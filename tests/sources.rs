@@ -434,6 +434,16 @@ mod duckdb_engine {
         c
     }
 
+    /// A Parquet file written by another program than the one attest
+    /// reads with (DuckDB's own writer, a DECIMAL column) reads as the CSV.
+    #[test]
+    fn a_parquet_file_written_by_duckdb_reads_as_the_csv() {
+        let from_file = run_unlocked(&csv_case());
+        let c = parquet_case();
+        c.write("a.toml", &plan("path = \"checkout.parquet\""));
+        same_statistics(&from_file, &run_unlocked(&c));
+    }
+
     #[test]
     fn duckdb_over_parquet_gives_the_statistics_of_the_same_file() {
         let from_file = run_unlocked(&csv_case());
