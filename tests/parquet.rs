@@ -12,40 +12,15 @@ mod common;
 use arrow_array::builder::{Decimal128Builder, StringBuilder, StringDictionaryBuilder};
 use arrow_array::types::Int32Type;
 use arrow_array::{ArrayRef, ListArray, RecordBatch};
+use common::checkout::CSV;
 use common::Case;
 use parquet::arrow::ArrowWriter;
 use parquet::file::properties::WriterProperties;
 use std::sync::Arc;
 
-const CSV: &str = include_str!("data/sources/checkout.csv");
-
+/// The shared checkout plan over the file at `path`.
 fn plan(path: &str) -> String {
-    format!(
-        r#"attest = 1
-title = "Checkout time at self-service kiosks"
-authors = ["Test library"]
-
-[data]
-path = "{path}"
-
-[[exclude]]
-reason = "Staff test checkouts are not patron visits"
-column = "entry"
-values = ["staff test"]
-
-[[hypothesis]]
-id = "H1"
-claim = "Checkouts at a kiosk take fewer seconds than at the desk."
-design = "independent"
-outcome = "seconds"
-label = "Seconds per checkout"
-units = "s"
-group = "point"
-levels = ["kiosk", "desk"]
-alternative = "less"
-method = "checked"
-"#
-    )
+    common::checkout::plan(&format!("path = \"{path}\""))
 }
 
 /// The fixture's rows: (visit, point, seconds in tenths or None, entry).

@@ -13,43 +13,10 @@
 
 mod common;
 
+use common::checkout::{plan, CSV};
 use common::Case;
 use std::path::{Path, PathBuf};
 use std::process::Command;
-
-/// The committed fixture: invented checkout times at a library's
-/// self-service kiosks and its desk.
-const CSV: &str = include_str!("data/sources/checkout.csv");
-
-/// The plan, with its `[data]` table left to each test.
-fn plan(data: &str) -> String {
-    format!(
-        r#"attest = 1
-title = "Checkout time at self-service kiosks"
-authors = ["Test library"]
-
-[data]
-{data}
-
-[[exclude]]
-reason = "Staff test checkouts are not patron visits"
-column = "entry"
-values = ["staff test"]
-
-[[hypothesis]]
-id = "H1"
-claim = "Checkouts at a kiosk take fewer seconds than at the desk."
-design = "independent"
-outcome = "seconds"
-label = "Seconds per checkout"
-units = "s"
-group = "point"
-levels = ["kiosk", "desk"]
-alternative = "less"
-method = "checked"
-"#
-    )
-}
 
 /// A case folder with the plan over the CSV file.
 fn csv_case() -> Case {

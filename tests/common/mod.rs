@@ -2,6 +2,7 @@
 //! real `attest` binary run inside it, and tolerant float comparison.
 #![allow(dead_code)]
 
+pub mod checkout;
 pub mod fixture;
 
 use assert_cmd::Command;
