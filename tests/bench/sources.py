@@ -37,7 +37,7 @@ import tempfile
 import time
 
 sys.path.insert(0, os.path.dirname(__file__))
-from scale import build, machine, timed, fmt_rows  # noqa: E402
+from scale import PLAN, build, machine, timed, fmt_rows  # noqa: E402
 
 ROOT = os.path.abspath(os.path.join(os.path.dirname(__file__), "..", ".."))
 
@@ -50,18 +50,8 @@ seed = 1
 {data}
 """
 
-HYPOTHESIS = """
-[[hypothesis]]
-id = "H{k}"
-claim = "The treated arm scores differently from the control arm."
-design = "independent"
-outcome = "score"
-group = "arm"
-levels = ["treated", "control"]
-alternative = "two-sided"
-method = "checked"
-robustness = true
-"""
+# The benchmark's one hypothesis, as scale.py writes it, numbered.
+HYPOTHESIS = "\n[[hypothesis]]" + PLAN.split("[[hypothesis]]", 1)[1].replace('id = "H1"', 'id = "H{k}"')
 
 PAIRED = """attest = 1
 title = "Benchmark: {pairs} pairs"
