@@ -37,6 +37,13 @@
 //! each with a relative slack of 1e-9 for rounding.
 //! Each split costs one O(N) walk over the pooled order, since pooled
 //! ranks do not change under reassignment.
+//!
+//! **Tie groups.** Every sum above is a sum over the pooled tie groups of
+//! `count × term` (members of one group inside one tie group share both
+//! midranks), so the t approximation works from each sample's
+//! (value, count) runs merged once: memory follows the number of distinct
+//! values, and the sums are exact ([`super::exact`]), so the result does
+//! not depend on the order of the rows.
 
 use super::dist::{t_quantile, t_sf};
 use super::hodges_lehmann::SplitMix64;
@@ -88,68 +95,143 @@ pub struct PermutationP {
     pub exact: bool,
 }
 
-/// Pooled-order description of two samples: per sorted position its
-/// pooled midrank and tie-group start and length.
-struct Pooled {
-    rank: Vec<f64>,
-    group: Vec<(usize, usize)>,
+/// One tie group of the pooled sample, in ascending order of value: its
+/// pooled midrank and how many of its members each group holds.
+#[derive(Clone, Copy)]
+struct Tie {
+    rank: f64,
+    count: [u64; 2],
 }
 
-fn pooled(x: &[f64], y: &[f64]) -> (Pooled, Vec<bool>) {
+/// The tie groups of one sorted sample (equal by `==`, so `-0.0` ties
+/// with `0.0`, as ranks require): `(value, count)`.
+fn tie_runs(sorted: &[f64]) -> Vec<(f64, u64)> {
+    let mut out: Vec<(f64, u64)> = Vec::new();
+    for &v in sorted {
+        match out.last_mut() {
+            Some(last) if last.0 == v => last.1 += 1,
+            _ => out.push((v, 1)),
+        }
+    }
+    out
+}
+
+fn sorted_runs(x: &[f64]) -> Vec<(f64, u64)> {
+    let mut s = x.to_vec();
+    s.sort_unstable_by(f64::total_cmp);
+    tie_runs(&s)
+}
+
+/// The pooled tie groups of `x` and `y`, built from each sample's own
+/// runs by one merge, so memory follows the number of distinct values
+/// (plus one sorted copy of the larger sample while its runs are made).
+fn pooled_ties(x: &[f64], y: &[f64]) -> Vec<Tie> {
+    let (rx, ry) = (sorted_runs(x), sorted_runs(y));
+    let mut out = Vec::with_capacity(rx.len() + ry.len());
+    let (mut i, mut j, mut seen) = (0, 0, 0usize);
+    while i < rx.len() || j < ry.len() {
+        let take_x = j == ry.len() || (i < rx.len() && rx[i].0 <= ry[j].0);
+        let take_y = i == rx.len() || (j < ry.len() && ry[j].0 <= rx[i].0);
+        let c0 = if take_x { rx[i].1 } else { 0 };
+        let c1 = if take_y { ry[j].1 } else { 0 };
+        i += usize::from(take_x);
+        j += usize::from(take_y);
+        let len = (c0 + c1) as usize;
+        out.push(Tie {
+            rank: super::ranks::midrank(seen, len),
+            count: [c0, c1],
+        });
+        seen += len;
+    }
+    out
+}
+
+/// (θ̂, n₁S₁², n₂S₂²) from the pooled tie groups. Within a tie group every
+/// member of one group has the same pooled midrank and the same
+/// within-group midrank (the group's members before it plus the midrank
+/// of its own members inside it), so each sum is a sum over tie groups of
+/// `count × term`, added exactly ([`super::exact`]) and rounded once: the
+/// same bits whatever the order of the rows.
+fn moments(ties: &[Tie], n1: usize, n2: usize) -> (f64, f64, f64) {
+    use super::exact::{mean_of, ExactSum};
+    let sizes = [n1 as f64, n2 as f64];
+    let mut mean = [0.0f64; 2];
+    for g in 0..2 {
+        let mut sum_r = ExactSum::new();
+        for t in ties {
+            sum_r.add_times(t.rank, t.count[g]);
+        }
+        mean[g] = mean_of(&mut sum_r, sizes[g]);
+    }
+    let mut ss = [ExactSum::new(), ExactSum::new()];
+    let mut before = [0u64; 2];
+    for t in ties {
+        for g in 0..2 {
+            let c = t.count[g];
+            if c == 0 {
+                continue;
+            }
+            let internal = before[g] as f64 + (c as f64 + 1.0) / 2.0;
+            let e = t.rank - internal - mean[g] + (sizes[g] + 1.0) / 2.0;
+            ss[g].add_times(e * e, c);
+            before[g] += c;
+        }
+    }
+    let s1 = ss[0].value() / (sizes[0] - 1.0);
+    let s2 = ss[1].value() / (sizes[1] - 1.0);
+    let theta = (mean[0] - (sizes[0] + 1.0) / 2.0) / sizes[1];
+    (theta, sizes[0] * s1, sizes[1] * s2)
+}
+
+/// The pooled sample for reassigning values between the groups: per
+/// position in the pooled sorted order, its tie group; per tie group, its
+/// midrank and size; and which positions the observed split puts in the
+/// first group.
+struct Pooled {
+    group_of: Vec<usize>,
+    ties: Vec<Tie>,
+    first: Vec<bool>,
+}
+
+fn pooled(x: &[f64], y: &[f64]) -> Pooled {
     let mut all: Vec<(f64, bool)> = x
         .iter()
         .map(|&v| (v, true))
         .chain(y.iter().map(|&v| (v, false)))
         .collect();
     all.sort_by(|a, b| a.0.total_cmp(&b.0));
-    let n = all.len();
-    let mut rank = vec![0.0; n];
-    let mut group = vec![(0, 0); n];
+    let mut group_of = vec![0; all.len()];
+    let mut ties = Vec::new();
     for_each_tie_group(all.iter().map(|p| p.0), |start, len| {
-        for i in start..start + len {
-            rank[i] = super::ranks::midrank(start, len);
-            group[i] = (start, len);
-        }
+        group_of[start..start + len].fill(ties.len());
+        ties.push(Tie {
+            rank: super::ranks::midrank(start, len),
+            count: [len as u64, 0],
+        });
     });
-    (Pooled { rank, group }, all.iter().map(|p| p.1).collect())
+    Pooled {
+        group_of,
+        ties,
+        first: all.iter().map(|p| p.1).collect(),
+    }
 }
 
-/// (θ̂, n₁S₁², n₂S₂²) for the split `first` (true = first group).
-fn moments(p: &Pooled, first: &[bool], n1: usize, n2: usize) -> (f64, f64, f64) {
-    let n = first.len();
-    // Within-group midranks: count each group's members before and inside
-    // every pooled tie group.
-    let mut before = [0usize; 2];
-    let mut sum_r = [0.0f64; 2];
-    let mut i = 0;
-    let mut internal = vec![0.0; n];
-    while i < n {
-        let (start, len) = p.group[i];
-        let mut inside = [0usize; 2];
-        for &f in &first[start..start + len] {
-            inside[usize::from(!f)] += 1;
+impl Pooled {
+    /// The tie groups under the split `first` (true = first group), into
+    /// `out` (reused between splits).
+    fn split(&self, first: &[bool], out: &mut Vec<Tie>) {
+        out.clear();
+        out.extend(self.ties.iter().map(|t| Tie {
+            rank: t.rank,
+            count: [0, t.count[0]],
+        }));
+        for (&g, &f) in self.group_of.iter().zip(first) {
+            if f {
+                out[g].count[0] += 1;
+                out[g].count[1] -= 1;
+            }
         }
-        for k in start..start + len {
-            let g = usize::from(!first[k]);
-            internal[k] = before[g] as f64 + (inside[g] as f64 + 1.0) / 2.0;
-            sum_r[g] += p.rank[k];
-        }
-        before[0] += inside[0];
-        before[1] += inside[1];
-        i = start + len;
     }
-    let sizes = [n1 as f64, n2 as f64];
-    let mean = [sum_r[0] / sizes[0], sum_r[1] / sizes[1]];
-    let mut ss = [0.0f64; 2];
-    for k in 0..n {
-        let g = usize::from(!first[k]);
-        let e = p.rank[k] - internal[k] - mean[g] + (sizes[g] + 1.0) / 2.0;
-        ss[g] += e * e;
-    }
-    let s1 = ss[0] / (sizes[0] - 1.0);
-    let s2 = ss[1] / (sizes[1] - 1.0);
-    let theta = (mean[0] - (sizes[0] + 1.0) / 2.0) / sizes[1];
-    (theta, sizes[0] * s1, sizes[1] * s2)
 }
 
 /// Both groups need two finite values (each group's variance has n − 1
@@ -194,8 +276,7 @@ pub fn brunner_munzel(
     check_level(level)?;
     check_groups(x, y)?;
     let (n1, n2) = (x.len(), y.len());
-    let (p, first) = pooled(x, y);
-    let (theta, a, b) = moments(&p, &first, n1, n2);
+    let (theta, a, b) = moments(&pooled_ties(x, y), n1, n2);
     let se = (a + b).sqrt() / (n1 as f64 * n2 as f64);
     if se <= 0.0 || !se.is_finite() {
         return Ok(BrunnerMunzel {
@@ -253,12 +334,14 @@ pub fn brunner_munzel_permutation(
         ));
     }
     let (n1, n2) = (x.len(), y.len());
-    let (p, first) = pooled(x, y);
-    let stat = |split: &[bool]| {
-        let (theta, a, b) = moments(&p, split, n1, n2);
+    let p = pooled(x, y);
+    let mut buf = Vec::with_capacity(p.ties.len());
+    let mut stat = |split: &[bool]| {
+        p.split(split, &mut buf);
+        let (theta, a, b) = moments(&buf, n1, n2);
         studentised(theta, a, b, n1, n2)
     };
-    let observed = stat(&first);
+    let observed = stat(&p.first);
     // Splits whose statistic equals the observed one in exact arithmetic
     // can differ from it by rounding; a relative slack of 1e-9 counts them
     // as equal (common practice).
@@ -423,6 +506,91 @@ fn binomial_at_most(n: usize, k: usize, cap: u64) -> Option<u64> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The definition, position by position (the module comment's
+    /// formulas with naive sums): the oracle for the tie-group sums.
+    #[allow(clippy::needless_range_loop)] // indices mirror the formulas
+    fn by_position(x: &[f64], y: &[f64]) -> (f64, f64, f64) {
+        let p = pooled(x, y);
+        let n = p.first.len();
+        let (n1, n2) = (x.len() as f64, y.len() as f64);
+        let sizes = [n1, n2];
+        let mut internal = vec![0.0; n];
+        let mut sum_r = [0.0; 2];
+        let mut before = [0usize; 2];
+        let mut k = 0;
+        while k < n {
+            let g0 = p.group_of[k];
+            let end = (k..n).find(|&i| p.group_of[i] != g0).unwrap_or(n);
+            let mut inside = [0usize; 2];
+            for &f in &p.first[k..end] {
+                inside[usize::from(!f)] += 1;
+            }
+            for i in k..end {
+                let g = usize::from(!p.first[i]);
+                internal[i] = before[g] as f64 + (inside[g] as f64 + 1.0) / 2.0;
+                sum_r[g] += p.ties[g0].rank;
+            }
+            before[0] += inside[0];
+            before[1] += inside[1];
+            k = end;
+        }
+        let mean = [sum_r[0] / n1, sum_r[1] / n2];
+        let mut ss = [0.0; 2];
+        for i in 0..n {
+            let g = usize::from(!p.first[i]);
+            let e = p.ties[p.group_of[i]].rank - internal[i] - mean[g] + (sizes[g] + 1.0) / 2.0;
+            ss[g] += e * e;
+        }
+        let theta = (mean[0] - (n1 + 1.0) / 2.0) / n2;
+        (theta, ss[0] * n1 / (n1 - 1.0), ss[1] * n2 / (n2 - 1.0))
+    }
+
+    #[test]
+    fn tie_group_sums_agree_with_the_definition() {
+        let mut rng = SplitMix64(7);
+        for case in 0..200 {
+            let (n1, n2) = (2 + rng.below(40), 2 + rng.below(40));
+            // Few distinct values in even cases (heavy ties), many in odd.
+            let levels = if case % 2 == 0 { 5 } else { 1_000 };
+            let mut draw = |n: usize| -> Vec<f64> {
+                (0..n)
+                    .map(|_| rng.below(levels) as f64 * 0.25 - 3.0)
+                    .collect()
+            };
+            let (x, y) = (draw(n1), draw(n2));
+            let (t0, a0, b0) = by_position(&x, &y);
+            let (t1, a1, b1) = moments(&pooled_ties(&x, &y), n1, n2);
+            for (u, v) in [(t0, t1), (a0, a1), (b0, b1)] {
+                assert!(
+                    (u - v).abs() <= 1e-12 * u.abs().max(1.0),
+                    "case {case}: {u} vs {v}"
+                );
+            }
+            // The permutation path's observed split is the same tie groups.
+            let p = pooled(&x, &y);
+            let mut buf = Vec::new();
+            p.split(&p.first, &mut buf);
+            assert_eq!(moments(&buf, n1, n2), (t1, a1, b1), "case {case}");
+        }
+    }
+
+    #[test]
+    fn negative_zero_ties_with_zero() {
+        let a = brunner_munzel(
+            &[-0.0, 1.0, 0.0],
+            &[0.0, 2.0, 3.0],
+            Alternative::TwoSided,
+            0.95,
+        );
+        let b = brunner_munzel(
+            &[0.0, 1.0, 0.0],
+            &[0.0, 2.0, 3.0],
+            Alternative::TwoSided,
+            0.95,
+        );
+        assert_eq!(a.unwrap(), b.unwrap());
+    }
 
     #[test]
     fn estimate_is_the_probability_of_superiority() {
