@@ -25,6 +25,9 @@ import sys
 import tempfile
 import time
 
+sys.path.insert(0, os.path.dirname(__file__))
+from scale import measured  # noqa: E402
+
 ROOT = os.path.abspath(os.path.join(os.path.dirname(__file__), "..", ".."))
 
 HEAD = """attest = 1
@@ -49,13 +52,8 @@ method = "welch-t"
 
 
 def timed(cmd, cwd):
-    start = time.perf_counter()
-    p = subprocess.Popen(cmd, cwd=cwd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
-    _, status, usage = os.wait4(p.pid, 0)
-    wall = time.perf_counter() - start
-    err = p.stderr.read().decode(errors="replace").strip().splitlines()
-    p.stderr.close()
-    return os.waitstatus_to_exitcode(status), wall, usage.ru_maxrss / 1024.0, (err or [""])[0]
+    code, wall, rss, err = measured(cmd, cwd)
+    return code, wall, rss, (err.strip().splitlines() or [""])[0]
 
 
 def write_rows(path, rows, label, note=lambda i: "ok"):
