@@ -150,16 +150,23 @@ def fmt_rows(n):
     return f"10^{len(str(n)) - 1}" if str(n).strip("0") == "1" else str(n)
 
 
+def workload(work, gen, rows):
+    """The folder for `rows` rows under `work` and the invented workload
+    CSV in it, written by the generator `gen` unless it is there."""
+    d = os.path.join(work, f"n{rows}")
+    os.makedirs(d, exist_ok=True)
+    data = os.path.join(d, "bench.csv")
+    if not os.path.exists(data):
+        subprocess.run([sys.executable, gen, str(rows), data], check=True)
+    return d, data
+
+
 def scale(args, attest, bare, peer_ok):
     print(f"| rows | attest s | attest MB | attest rows/s | parse s | attest/parse | HTML KB |"
           + (" peer s | peer MB | peer/attest time | peer/attest memory |" if peer_ok else ""))
     print("|---:|---:|---:|---:|---:|---:|---:|" + ("---:|---:|---:|---:|" if peer_ok else ""))
     for rows in args.sizes:
-        d = os.path.join(args.work, f"n{rows}")
-        os.makedirs(d, exist_ok=True)
-        data = os.path.join(d, "bench.csv")
-        if not os.path.exists(data):
-            subprocess.run([sys.executable, args.gen, str(rows), data], check=True)
+        d, data = workload(args.work, args.gen, rows)
         plan = os.path.join(d, "bench.toml")
         lock = os.path.join(d, "bench.lock")
         if not os.path.exists(lock):

@@ -37,7 +37,7 @@ import tempfile
 import time
 
 sys.path.insert(0, os.path.dirname(__file__))
-from scale import PLAN, build, machine, timed, fmt_rows  # noqa: E402
+from scale import PLAN, build, machine, timed, fmt_rows, workload  # noqa: E402
 
 ROOT = os.path.abspath(os.path.join(os.path.dirname(__file__), "..", ".."))
 
@@ -123,11 +123,7 @@ def sizes(args, attest, bare):
           + (" | duckdb s | duckdb MB" if args.duckdb_attest else "") + " | parse s | csv/parse |")
     print("|---:|---:|---:|---:|---:|---:|---:|---:|---:|" + ("---:|---:|" if args.duckdb_attest else "") + "---:|---:|")
     for rows in args.rows:
-        d = os.path.join(args.work, f"n{rows}")
-        os.makedirs(d, exist_ok=True)
-        csv = os.path.join(d, "bench.csv")
-        if not os.path.exists(csv):
-            subprocess.run([sys.executable, args.gen, str(rows), csv], check=True)
+        d, csv = workload(args.work, args.gen, rows)
         pq = os.path.join(d, "bench.parquet")
         if not os.path.exists(pq):
             to_parquet(csv, pq)
