@@ -110,15 +110,18 @@ fn with_resolution(png: Vec<u8>, dpi: f64) -> Vec<u8> {
 
 /// The PDF of a figure, as vectors, its text as outlines.
 pub(crate) fn pdf(svg: &[u8], name: &str) -> Result<Vec<u8>> {
-    let svg = one_paint_opacity(svg);
-    let tree = tree(&svg, name)?;
+    tree_pdf(&tree(&one_paint_opacity(svg), name)?, name)
+}
+
+/// The PDF of a parsed figure, its text as outlines.
+fn tree_pdf(tree: &usvg::Tree, name: &str) -> Result<Vec<u8>> {
     let options = svg2pdf::ConversionOptions {
         embed_text: false,
         ..svg2pdf::ConversionOptions::default()
     };
     // usvg reads the SVG's "16cm" as CSS pixels (96 per inch); at that
     // resolution the PDF page is the figure's true size, 16 cm wide.
-    svg2pdf::to_pdf(&tree, options, svg2pdf::PageOptions { dpi: 96.0 })
+    svg2pdf::to_pdf(tree, options, svg2pdf::PageOptions { dpi: 96.0 })
         .map(canonical)
         .map_err(|e| Failure::internal(format!("figure {name} could not be made a PDF: {e}")))
 }
@@ -439,14 +442,7 @@ mod tests {
             ));
         }
         svg.push_str(r##"<rect x="30" y="30" width="200" height="60" opacity="0.3" fill="#D55E00" stroke="none"/></svg>"##);
-        let as_written = {
-            let tree = tree(svg.as_bytes(), "t").unwrap();
-            let options = svg2pdf::ConversionOptions {
-                embed_text: false,
-                ..svg2pdf::ConversionOptions::default()
-            };
-            svg2pdf::to_pdf(&tree, options, svg2pdf::PageOptions { dpi: 96.0 }).unwrap()
-        };
+        let as_written = tree_pdf(&tree(svg.as_bytes(), "t").unwrap(), "t").unwrap();
         let ours = pdf(svg.as_bytes(), "t").unwrap();
         assert!(
             ours.len() < as_written.len() / 2,

@@ -184,9 +184,10 @@ fn moments(ties: &[Tie], n1: usize, n2: usize) -> (f64, f64, f64) {
 }
 
 /// The pooled sample for reassigning values between the groups: per
-/// position in the pooled sorted order, its tie group; per tie group, its
-/// midrank and size; and which positions the observed split puts in the
-/// first group.
+/// position in the pooled sorted order, its tie group; the tie groups
+/// with every member counted in the second group (a split moves its
+/// first-group members over); and which positions the observed split puts
+/// in the first group.
 struct Pooled {
     group_of: Vec<usize>,
     ties: Vec<Tie>,
@@ -206,7 +207,7 @@ fn pooled(x: &[f64], y: &[f64]) -> Pooled {
         group_of[start..start + len].fill(ties.len());
         ties.push(Tie {
             rank: super::ranks::midrank(start, len),
-            count: [len as u64, 0],
+            count: [0, len as u64],
         });
     });
     Pooled {
@@ -221,10 +222,7 @@ impl Pooled {
     /// `out` (reused between splits).
     fn split(&self, first: &[bool], out: &mut Vec<Tie>) {
         out.clear();
-        out.extend(self.ties.iter().map(|t| Tie {
-            rank: t.rank,
-            count: [0, t.count[0]],
-        }));
+        out.extend_from_slice(&self.ties);
         for (&g, &f) in self.group_of.iter().zip(first) {
             if f {
                 out[g].count[0] += 1;
