@@ -103,23 +103,16 @@ struct Tie {
     count: [u64; 2],
 }
 
-/// The tie groups of one sorted sample (equal by `==`, so `-0.0` ties
-/// with `0.0`, as ranks require): `(value, count)`.
-fn tie_runs(sorted: &[f64]) -> Vec<(f64, u64)> {
-    let mut out: Vec<(f64, u64)> = Vec::new();
-    for &v in sorted {
-        match out.last_mut() {
-            Some(last) if last.0 == v => last.1 += 1,
-            _ => out.push((v, 1)),
-        }
-    }
-    out
-}
-
+/// The tie groups of a sample, ascending: `(value, count)`, equal by
+/// `==` (so `-0.0` ties with `0.0`, as ranks require).
 fn sorted_runs(x: &[f64]) -> Vec<(f64, u64)> {
     let mut s = x.to_vec();
     s.sort_unstable_by(f64::total_cmp);
-    tie_runs(&s)
+    let mut out = Vec::new();
+    for_each_tie_group(s.iter().copied(), |start, len| {
+        out.push((s[start], len as u64))
+    });
+    out
 }
 
 /// The pooled tie groups of `x` and `y`, built from each sample's own
