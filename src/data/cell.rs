@@ -14,7 +14,9 @@
 
 use super::{Column, TextColumn, Use};
 use crate::error::Failure;
+use hashbrown::{DefaultHashBuilder, HashTable};
 use std::collections::HashMap;
+use std::hash::BuildHasher;
 
 /// Why a cell could not be used.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -119,7 +121,47 @@ pub(crate) struct Builder {
 struct ColumnBuild {
     numbers: Option<Vec<f64>>,
     text: Option<TextColumn>,
-    index: HashMap<Vec<u8>, u32>,
+    index: LevelIndex,
+}
+
+/// Finds a level's code by its text. The table holds codes and their
+/// texts' hashes; the texts it compares against are the column's own
+/// `levels`, so a label is stored once (not again as a key), and neither a
+/// lookup that misses nor growing the table reads a text. The hasher is
+/// seeded per process: codes follow first appearance, never the hash, so
+/// no output depends on it, and a data file cannot be crafted against a
+/// known seed.
+#[derive(Debug, Default)]
+pub(crate) struct LevelIndex {
+    table: HashTable<(u64, u32)>,
+    state: DefaultHashBuilder,
+}
+
+impl LevelIndex {
+    /// An index of every level of `levels`, which must be distinct.
+    pub(crate) fn of(levels: &[String]) -> Self {
+        let mut index = LevelIndex::default();
+        for code in 0..levels.len() {
+            index.add(levels, code as u32);
+        }
+        index
+    }
+
+    /// The code of `s` among `levels`, if it is one of them.
+    pub(crate) fn get(&self, levels: &[String], s: &[u8]) -> Option<u32> {
+        let hash = self.state.hash_one(s);
+        self.table
+            .find(hash, |&(h, c)| {
+                h == hash && levels[c as usize].as_bytes() == s
+            })
+            .map(|&(_, c)| c)
+    }
+
+    /// Records `levels[code]`, a text not yet in the index.
+    pub(crate) fn add(&mut self, levels: &[String], code: u32) {
+        let hash = self.state.hash_one(levels[code as usize].as_bytes());
+        self.table.insert_unique(hash, (hash, code), |e| e.0);
+    }
 }
 
 impl Builder {
@@ -140,7 +182,7 @@ impl Builder {
                 .map(|u| ColumnBuild {
                     numbers: u.numeric.then(Vec::new),
                     text: u.text.then(TextColumn::default),
-                    index: HashMap::new(),
+                    index: LevelIndex::default(),
                 })
                 .collect(),
         }
@@ -241,11 +283,119 @@ impl Builder {
     }
 }
 
+/// Joins chunk tables, given in file order, into one: levels stay in order
+/// of first appearance in the whole file, and each chunk's codes are
+/// renumbered into the joined levels. No text is copied or compared twice.
+///
+/// A column can hold a million distinct labels (unit ids), each met in
+/// several chunks, so finding the repeats is split by hash into shards that
+/// run in parallel, each with a table small enough for the cache; within a
+/// shard, chunks are visited in order, so the first chunk and code of each
+/// text are found whatever the thread count or hash seed. Numbering the
+/// new texts is then one pass in file order with no hashing.
+pub(crate) fn merge_levels(mut parts: Vec<TextColumn>) -> TextColumn {
+    use rayon::prelude::*;
+    const SHARDS: usize = 64;
+    if parts.len() <= 1 {
+        return parts.pop().unwrap_or_default();
+    }
+    let state = DefaultHashBuilder::default();
+    // Per chunk and shard: (code, hash) of its levels in that shard.
+    let buckets: Vec<Vec<Vec<(u32, u64)>>> = parts
+        .par_iter()
+        .map(|t| {
+            let mut b = vec![Vec::new(); SHARDS];
+            for (c, l) in t.levels.iter().enumerate() {
+                let h = state.hash_one(l.as_bytes());
+                // Middle bits: the table uses the low bits for its slot and
+                // the top ones for its tags, which must still vary in a shard.
+                b[(h >> 32) as usize % SHARDS].push((c as u32, h));
+            }
+            b
+        })
+        .collect();
+    // Per shard: every (chunk, code) whose text an earlier (chunk, code) had,
+    // with that earlier one.
+    let repeats: Vec<Vec<[u32; 4]>> = (0..SHARDS)
+        .into_par_iter()
+        .map(|s| {
+            let mut table: HashTable<(u64, u32, u32)> = HashTable::new();
+            let mut found = Vec::new();
+            for (p, b) in buckets.iter().enumerate() {
+                for &(c, h) in &b[s] {
+                    let text = parts[p].levels[c as usize].as_bytes();
+                    let hit = table.find(h, |&(h2, q, d)| {
+                        h2 == h && parts[q as usize].levels[d as usize].as_bytes() == text
+                    });
+                    match hit {
+                        Some(&(_, q, d)) => found.push([p as u32, c, q, d]),
+                        None => {
+                            table.insert_unique(h, (h, p as u32, c), |e| e.0);
+                        }
+                    }
+                }
+            }
+            found
+        })
+        .collect();
+    drop(buckets);
+    // earlier[p][c]: the first (chunk, code) with the text of (p, c).
+    let mut earlier: Vec<Vec<Option<(u32, u32)>>> =
+        parts.iter().map(|t| vec![None; t.levels.len()]).collect();
+    for [p, c, q, d] in repeats.into_iter().flatten() {
+        earlier[p as usize][c as usize] = Some((q, d));
+    }
+    let total: usize = parts.iter().map(|t| t.codes.len()).sum();
+    let mut joined = TextColumn {
+        codes: Vec::new(),
+        levels: Vec::new(),
+        missing: Vec::new(),
+    };
+    // code[p][c]: the joined code of (p, c); an earlier one is always from
+    // an earlier chunk, so it is numbered already.
+    let mut code: Vec<Vec<u32>> = Vec::with_capacity(parts.len());
+    for (p, t) in parts.iter_mut().enumerate() {
+        let mut here = Vec::with_capacity(t.levels.len());
+        for ((l, &m), e) in t.levels.iter_mut().zip(&t.missing).zip(&earlier[p]) {
+            here.push(match *e {
+                Some((q, d)) => code[q as usize][d as usize],
+                None => {
+                    joined.levels.push(std::mem::take(l));
+                    joined.missing.push(m);
+                    (joined.levels.len() - 1) as u32
+                }
+            });
+        }
+        code.push(here);
+    }
+    // The rows' codes, renumbered chunk by chunk in parallel.
+    joined.codes = vec![0; total];
+    let mut rest = joined.codes.as_mut_slice();
+    let mut slices = Vec::with_capacity(parts.len());
+    for t in &parts {
+        let (a, b) = rest.split_at_mut(t.codes.len());
+        slices.push(a);
+        rest = b;
+    }
+    slices
+        .into_par_iter()
+        .zip(&parts)
+        .zip(&code)
+        .for_each(|((out, t), map)| {
+            for (o, &c) in out.iter_mut().zip(&t.codes) {
+                *o = map[c as usize];
+            }
+        });
+    // The repeats' texts are freed on both cores.
+    parts.into_par_iter().for_each(drop);
+    joined
+}
+
 /// The code of `s` in `t`, adding it as a new level when unseen. Small
 /// level tables (the usual two or three groups) are scanned, larger ones hashed.
 fn intern(
     t: &mut TextColumn,
-    index: &mut HashMap<Vec<u8>, u32>,
+    index: &mut LevelIndex,
     s: &[u8],
     missing: bool,
 ) -> Result<u32, Problem> {
@@ -258,7 +408,7 @@ fn intern(
         if let Some(p) = t.levels.iter().position(|l| l.as_bytes() == s) {
             return Ok(p as u32);
         }
-    } else if let Some(&c) = index.get(s) {
+    } else if let Some(c) = index.get(&t.levels, s) {
         return Ok(c);
     }
     let text = std::str::from_utf8(s).map_err(|_| Problem::NotUtf8)?;
@@ -266,14 +416,9 @@ fn intern(
     t.levels.push(text.to_string());
     t.missing.push(missing);
     if t.levels.len() == 17 {
-        index.extend(
-            t.levels
-                .iter()
-                .enumerate()
-                .map(|(i, l)| (l.as_bytes().to_vec(), i as u32)),
-        );
+        *index = LevelIndex::of(&t.levels);
     } else if t.levels.len() > 17 {
-        index.insert(s.to_vec(), code);
+        index.add(&t.levels, code);
     }
     Ok(code)
 }
@@ -368,6 +513,57 @@ mod tests {
         assert_eq!(parse_number(b"812,5O", b','), Err(Problem::NotNumber));
         assert_eq!(parse_number(b"-", b'.'), Err(Problem::NotNumber));
         assert_eq!(parse_number(b"\xff", b'.'), Err(Problem::NotUtf8));
+    }
+
+    /// Reads `cells` as one text column in one builder.
+    fn column_of(cells: &[String], missing: &[String]) -> TextColumn {
+        let want = [Use {
+            name: "u".into(),
+            numeric: false,
+            text: true,
+        }];
+        let mut b = Builder::new(&want, '.', missing);
+        for c in cells {
+            b.push_text(0, c.as_bytes()).unwrap();
+        }
+        b.finish(&want, &[0])["u"].text.clone().unwrap()
+    }
+
+    #[test]
+    fn merged_chunks_equal_one_pass() {
+        // Random labels drawn from small and large pools (few repeats and
+        // many), a missing text among them, cut into chunks at random
+        // points, some empty: the merge must give exactly the table one
+        // builder gives over all the cells (levels in order of first
+        // appearance, codes, missing flags).
+        let mut state = 0x2545_f491_4f6c_dd1du64;
+        let mut next = move |n: u64| {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            state % n
+        };
+        let missing = vec!["NA".to_string()];
+        for (pool, rows) in [(3u64, 500u64), (40, 2000), (5000, 6000), (1_000_000, 3000)] {
+            let cells: Vec<String> = (0..rows)
+                .map(|_| match next(pool) {
+                    0 => "NA".to_string(),
+                    k => format!("unit-{k}"),
+                })
+                .collect();
+            let one = column_of(&cells, &missing);
+            for pieces in [1u64, 2, 7, 64] {
+                let mut cuts: Vec<usize> = (1..pieces).map(|_| next(rows + 1) as usize).collect();
+                cuts.push(0);
+                cuts.push(cells.len());
+                cuts.sort_unstable();
+                let parts: Vec<TextColumn> = cuts
+                    .windows(2)
+                    .map(|w| column_of(&cells[w[0]..w[1]], &missing))
+                    .collect();
+                assert_eq!(merge_levels(parts), one, "pool {pool}, {pieces} pieces");
+            }
+        }
     }
 
     #[test]

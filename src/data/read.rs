@@ -14,7 +14,7 @@
 //! More than [`MAX_ROWS`] data rows are refused.
 
 use super::cell::{self, Builder};
-use super::{locate, LineMap, Table, Use};
+use super::{locate, LineMap, Table, TextColumn, Use};
 use crate::error::{Failure, Result};
 use crate::plan::DataSpec;
 use rayon::prelude::*;
@@ -578,81 +578,65 @@ impl Job<'_> {
     }
 }
 
+/// One column's pieces from every chunk, in file order.
+struct Gathered {
+    /// The first chunk's column, its values taken out.
+    column: super::Column,
+    numbers: Vec<Vec<f64>>,
+    texts: Vec<TextColumn>,
+}
+
 /// Joins the chunks in order; text codes of later chunks are renumbered so
 /// levels stay in order of first appearance in the file.
 fn join(parts: Vec<Part>) -> (HashMap<String, super::Column>, LineMap) {
-    let mut it = parts.into_iter();
-    let Some(first) = it.next() else {
-        return (HashMap::new(), LineMap::default());
-    };
-    let rest: Vec<Part> = it.collect();
-    let total: usize = first.rows + rest.iter().map(|p| p.rows).sum::<usize>();
-    let mut lines = first.lines;
-    let mut rows = first.rows;
-    let mut cols = first.columns;
-    // One allocation per column instead of repeated doubling.
-    for c in cols.values_mut() {
-        if let Some(v) = &mut c.numbers {
-            v.reserve_exact(total - v.len());
+    let mut lines: Option<LineMap> = None;
+    let mut rows = 0;
+    // Every chunk has the same columns; each is gathered from all chunks.
+    let mut gathered: HashMap<String, Gathered> = HashMap::new();
+    for p in parts {
+        match &mut lines {
+            None => lines = Some(p.lines),
+            Some(lines) => {
+                let line0 = p.lines.line(0);
+                if lines.line(rows) != line0 {
+                    lines.jumps.push((rows, line0));
+                }
+                lines.jumps.extend(
+                    p.lines
+                        .jumps
+                        .iter()
+                        .filter(|(r, _)| *r > 0)
+                        .map(|(r, l)| (r + rows, *l)),
+                );
+            }
         }
-        if let Some(t) = &mut c.text {
-            t.codes.reserve_exact(total - t.codes.len());
+        rows += p.rows;
+        for (name, mut c) in p.columns {
+            let numbers = c.numbers.take();
+            let text = c.text.take();
+            let g = gathered.entry(name).or_insert_with(|| Gathered {
+                column: c,
+                numbers: Vec::new(),
+                texts: Vec::new(),
+            });
+            g.numbers.extend(numbers);
+            g.texts.extend(text);
         }
     }
-    // Text → code of every text column so far, built once and kept up to
-    // date (a column may have a million distinct labels).
-    let mut known: HashMap<String, HashMap<String, u32>> = cols
-        .iter()
-        .filter_map(|(name, c)| {
-            let t = c.text.as_ref()?;
-            let map = t
-                .levels
-                .iter()
-                .enumerate()
-                .map(|(i, l)| (l.clone(), i as u32))
-                .collect();
-            Some((name.clone(), map))
+    let columns = gathered
+        .into_iter()
+        .map(|(name, g)| {
+            let mut c = g.column;
+            if !g.numbers.is_empty() {
+                c.numbers = Some(g.numbers.concat());
+            }
+            if !g.texts.is_empty() {
+                c.text = Some(cell::merge_levels(g.texts));
+            }
+            (name, c)
         })
         .collect();
-    for p in rest {
-        let line0 = p.lines.line(0);
-        if lines.line(rows) != line0 {
-            lines.jumps.push((rows, line0));
-        }
-        lines.jumps.extend(
-            p.lines
-                .jumps
-                .iter()
-                .filter(|(r, _)| *r > 0)
-                .map(|(r, l)| (r + rows, *l)),
-        );
-        rows += p.rows;
-        for (name, c) in p.columns {
-            let Some(into) = cols.get_mut(&name) else {
-                continue;
-            };
-            if let (Some(a), Some(b)) = (&mut into.numbers, c.numbers) {
-                a.extend_from_slice(&b);
-            }
-            if let (Some(a), Some(b)) = (&mut into.text, c.text) {
-                let known = known.entry(name).or_default();
-                let map: Vec<u32> = b
-                    .levels
-                    .iter()
-                    .zip(&b.missing)
-                    .map(|(l, m)| {
-                        *known.entry(l.clone()).or_insert_with(|| {
-                            a.levels.push(l.clone());
-                            a.missing.push(*m);
-                            (a.levels.len() - 1) as u32
-                        })
-                    })
-                    .collect();
-                a.codes.extend(b.codes.iter().map(|&c| map[c as usize]));
-            }
-        }
-    }
-    (cols, lines)
+    (columns, lines.unwrap_or_default())
 }
 
 #[cfg(test)]

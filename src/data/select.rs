@@ -12,7 +12,6 @@ use super::{Dataset, TextColumn};
 use crate::error::{Failure, Result};
 use crate::plan::{Comparison, Hypothesis, Plan};
 use crate::results::{RowFlow, RuleStep};
-use std::collections::HashMap;
 
 /// The values one hypothesis analyses, and how rows flowed to them.
 #[derive(Clone, Debug)]
@@ -217,13 +216,21 @@ fn check_duplicates(
     condition: &str,
     levels: &[String; 2],
 ) -> Result<()> {
-    let mut seen: HashMap<(u32, u8), usize> = HashMap::new();
+    // Per unit and condition: the first row seen (NONE_YET if none). A
+    // table indexed by the unit's code, so no row is hashed.
+    const NONE_YET: usize = usize::MAX;
+    let mut seen: Vec<[usize; 2]> = vec![[NONE_YET; 2]; unit.levels.len()];
     for (i, &s) in slots.iter().enumerate() {
         if s > SECOND || unit.is_missing(i) {
             continue;
         }
-        if let Some(prev) = seen.insert((unit.codes[i], s), i) {
-            let u = &unit.levels[unit.codes[i] as usize];
+        let code = unit.codes[i];
+        let slot = &mut seen[code as usize][usize::from(s)];
+        if *slot == NONE_YET {
+            *slot = i;
+        } else {
+            let prev = *slot;
+            let u = &unit.levels[code as usize];
             let (l1, l2) = (ds.lines.line(prev), ds.lines.line(i));
             let pos = ds.columns.get(pair_by).map(|c| c.position);
             return Err(Failure::input(format!(
