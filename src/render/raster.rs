@@ -258,20 +258,34 @@ pub(crate) struct Raster;
 
 impl Renderer for Raster {
     fn render(&self, cx: &Context, done: &[Output]) -> Result<Vec<Output>> {
-        let mut out = Vec::new();
-        for f in &cx.view.figures {
-            let Some(svg) = done.iter().find(|o| o.name == f.file) else {
-                continue;
-            };
-            let stem = f.file.strip_suffix(".svg").unwrap_or(&f.file);
-            out.push(Output {
-                name: format!("{stem}.png"),
-                bytes: png(&svg.bytes, &f.file)?,
-            });
-            out.push(Output {
-                name: format!("{stem}.pdf"),
-                bytes: pdf(&svg.bytes, &f.file)?,
-            });
+        use rayon::prelude::*;
+        // Each figure is converted on its own, so the figures (and each
+        // one's two formats) share the cores; the list keeps figure order,
+        // so the outputs are the same whatever the thread count.
+        let each: Vec<Result<[Output; 2]>> = cx
+            .view
+            .figures
+            .par_iter()
+            .filter_map(|f| Some((f, done.iter().find(|o| o.name == f.file)?)))
+            .map(|(f, svg)| {
+                let stem = f.file.strip_suffix(".svg").unwrap_or(&f.file);
+                let (png, pdf) =
+                    rayon::join(|| png(&svg.bytes, &f.file), || pdf(&svg.bytes, &f.file));
+                Ok([
+                    Output {
+                        name: format!("{stem}.png"),
+                        bytes: png?,
+                    },
+                    Output {
+                        name: format!("{stem}.pdf"),
+                        bytes: pdf?,
+                    },
+                ])
+            })
+            .collect();
+        let mut out = Vec::with_capacity(2 * each.len());
+        for pair in each {
+            out.extend(pair?);
         }
         Ok(out)
     }

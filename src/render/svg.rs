@@ -35,10 +35,12 @@ impl super::Renderer for Svg {
         cx: &super::Context,
         _done: &[super::Output],
     ) -> crate::error::Result<Vec<super::Output>> {
+        use rayon::prelude::*;
+        // Figures are drawn in parallel, collected in the view's order.
         Ok(cx
             .view
             .figures
-            .iter()
+            .par_iter()
             .map(|f| super::Output::new(f.file.clone(), draw(cx.results, f)))
             .collect())
     }
