@@ -62,8 +62,18 @@ fn large_sample_means_and_sds_match_exact_arithmetic() {
         let want = &f["moments"][key];
         // mpmath's 50-digit mean rounded to a double; attest's mean is
         // within half an ulp of the exact mean: 1 ulp apart at most.
-        check(&format!("{key} mean"), d.mean, want["mean"].as_f64().unwrap(), 2.3e-16);
-        check(&format!("{key} sd"), d.sd.unwrap(), want["sd"].as_f64().unwrap(), 1e-13);
+        check(
+            &format!("{key} mean"),
+            d.mean,
+            want["mean"].as_f64().unwrap(),
+            2.3e-16,
+        );
+        check(
+            &format!("{key} sd"),
+            d.sd.unwrap(),
+            want["sd"].as_f64().unwrap(),
+            1e-13,
+        );
     }
 }
 
@@ -73,7 +83,15 @@ fn large_sample_t_tests_match_scipy() {
     let (x, y) = (sample(&f, "x_tenths"), sample(&f, "y_tenths"));
     let two = Alternative::TwoSided;
     compare("Welch", &welch_t(&x, &y, two, 0.95).unwrap(), &f["welch"]);
-    compare("Student", &student_t(&x, &y, two, 0.95).unwrap(), &f["student"]);
+    compare(
+        "Student",
+        &student_t(&x, &y, two, 0.95).unwrap(),
+        &f["student"],
+    );
     let (b, a) = (sample(&f, "before_tenths"), sample(&f, "after_tenths"));
-    compare("paired", &paired_t(&b, &a, two, 0.95).unwrap(), &f["paired"]);
+    compare(
+        "paired",
+        &paired_t(&b, &a, two, 0.95).unwrap(),
+        &f["paired"],
+    );
 }

@@ -370,6 +370,182 @@ fn select_pair(m: &impl SortedMatrix, k: usize) -> Option<(f64, f64)> {
     Some((v, next))
 }
 
+/// The same matrices over runs of equal values, for large samples with
+/// few distinct values (measurements at a fixed resolution): each cell of
+/// two runs stands for count × count entries (a Walsh run with itself for
+/// c(c+1)/2). The k-th entry is found by bisection on its value over the
+/// total order of the doubles: the smallest `t` with more than k entries
+/// at most `t` is an entry, because that count only steps at entries. At
+/// most 64 counts, each a two-pointer walk over the runs, O(r1 + r2), and
+/// since entries are the same roundings as above the result has the same
+/// bits (a common-practice bisection on a monotone count; the run form is
+/// the value-count form of `super::runs`).
+trait RunMatrix {
+    /// How many entries are at most `t`.
+    fn count_le(&self, t: f64) -> u64;
+    /// The number of entries.
+    fn total(&self) -> u64;
+    /// The smallest and the largest entry.
+    fn ends(&self) -> (f64, f64);
+}
+
+/// `x_i − y_j` over the runs of ascending x and ascending y.
+struct RunDifferences {
+    x: Vec<(f64, u64)>,
+    y: Vec<(f64, u64)>,
+    /// `y_from[b]`: how many y values lie in runs `b..`.
+    y_from: Vec<u64>,
+}
+
+impl RunDifferences {
+    fn new(x: &[f64], y: &[f64]) -> Self {
+        let (x, y): (Vec<_>, Vec<_>) = (runs_of(x), runs_of(y));
+        let mut y_from = vec![0u64; y.len() + 1];
+        for b in (0..y.len()).rev() {
+            y_from[b] = y_from[b + 1] + y[b].1;
+        }
+        RunDifferences { x, y, y_from }
+    }
+}
+
+impl RunMatrix for RunDifferences {
+    fn count_le(&self, t: f64) -> u64 {
+        // For each x run the entries at most t are the y runs from p on;
+        // p only moves right as x grows.
+        let mut p = 0;
+        let mut n = 0;
+        for &(xv, xc) in &self.x {
+            while p < self.y.len() && xv - self.y[p].0 > t {
+                p += 1;
+            }
+            n += xc * self.y_from[p];
+        }
+        n
+    }
+    fn total(&self) -> u64 {
+        self.x.iter().map(|r| r.1).sum::<u64>() * self.y_from[0]
+    }
+    fn ends(&self) -> (f64, f64) {
+        let (x0, x1) = (self.x[0].0, self.x[self.x.len() - 1].0);
+        let (y0, y1) = (self.y[0].0, self.y[self.y.len() - 1].0);
+        (x0 - y1, x1 - y0)
+    }
+}
+
+/// Walsh averages over the runs of an ascending sample.
+struct RunWalsh {
+    d: Vec<(f64, u64)>,
+    /// `before[b]`: how many values lie in runs `..b`.
+    before: Vec<u64>,
+}
+
+impl RunWalsh {
+    fn new(d: &[f64]) -> Self {
+        let d = runs_of(d);
+        let mut before = vec![0u64; d.len() + 1];
+        for b in 0..d.len() {
+            before[b + 1] = before[b] + d[b].1;
+        }
+        RunWalsh { d, before }
+    }
+}
+
+impl RunMatrix for RunWalsh {
+    fn count_le(&self, t: f64) -> u64 {
+        // For run a the entries at most t are runs a..q (q falls as a
+        // grows); the run with itself counts c(c+1)/2 pairs i ≤ j.
+        let mut q = self.d.len();
+        let mut n = 0;
+        for (a, &(v, c)) in self.d.iter().enumerate() {
+            while q > 0 && walsh(v, self.d[q - 1].0) > t {
+                q -= 1;
+            }
+            if q <= a {
+                break;
+            }
+            n += c * (c + 1) / 2 + c * (self.before[q] - self.before[a + 1]);
+        }
+        n
+    }
+    fn total(&self) -> u64 {
+        let n = self.before[self.d.len()];
+        n * (n + 1) / 2
+    }
+    fn ends(&self) -> (f64, f64) {
+        let (lo, hi) = (self.d[0].0, self.d[self.d.len() - 1].0);
+        (walsh(lo, lo), walsh(hi, hi))
+    }
+}
+
+fn runs_of(sorted: &[f64]) -> Vec<(f64, u64)> {
+    super::runs::of_sorted(sorted).collect()
+}
+
+/// Whether the run form pays for a sorted sample: at most one distinct
+/// value in 16 (64 short walks then cost less than the general
+/// selection's few long sweeps), and no value that could make an entry
+/// −0.0 (−0.0 itself, or a negative value so small that halving it
+/// rounds to −0.0), so that the zero the bisection lands on is +0.0, as
+/// the entries' zero is.
+fn few_distinct(sorted: &[f64]) -> bool {
+    let tiny_negative = |v: &f64| v.is_sign_negative() && *v > -1e-300;
+    if sorted.len() < 64 || sorted.iter().any(tiny_negative) {
+        return false;
+    }
+    super::runs::of_sorted(sorted).count() * 16 <= sorted.len()
+}
+
+/// Maps doubles to integers in their total order, and back.
+fn order_key(v: f64) -> u64 {
+    let b = v.to_bits();
+    if b >> 63 == 1 {
+        !b
+    } else {
+        b | 1 << 63
+    }
+}
+
+fn from_key(k: u64) -> f64 {
+    f64::from_bits(if k >> 63 == 1 { k & !(1 << 63) } else { !k })
+}
+
+/// The k-th smallest (0-based) entry of a run matrix; `None` when
+/// `k ≥ total`.
+fn select_runs(m: &impl RunMatrix, k: u64) -> Option<f64> {
+    if k >= m.total() {
+        return None;
+    }
+    let (low, high) = m.ends();
+    let (mut lo, mut hi) = (order_key(low), order_key(high));
+    while lo < hi {
+        let mid = lo + (hi - lo) / 2;
+        if m.count_le(from_key(mid)) > k {
+            hi = mid;
+        } else {
+            lo = mid + 1;
+        }
+    }
+    // −0.0 and +0.0 count alike; the entries' zero is +0.0 (see
+    // [`few_distinct`]).
+    Some(from_key(lo) + 0.0)
+}
+
+/// Median of a run matrix's entries (the mean of the two middle ones for
+/// an even count), as [`median_of`].
+fn median_runs(m: &impl RunMatrix) -> Option<f64> {
+    let count = m.total();
+    if count == 0 {
+        return None;
+    }
+    if count % 2 == 1 {
+        return select_runs(m, count / 2);
+    }
+    Some(walsh(
+        select_runs(m, count / 2 - 1)?,
+        select_runs(m, count / 2)?,
+    ))
+}
+
 use super::sorted;
 
 /// The k-th smallest (0-based: `k = 0` is the minimum) of the n1·n2
@@ -381,6 +557,9 @@ pub fn kth_pairwise_difference(x: &[f64], y: &[f64], k: usize) -> Option<f64> {
 
 /// As [`kth_pairwise_difference`], for inputs already sorted ascending.
 pub(crate) fn kth_pairwise_difference_sorted(x: &[f64], y: &[f64], k: usize) -> Option<f64> {
+    if few_distinct(x) && few_distinct(y) {
+        return select_runs(&RunDifferences::new(x, y), k as u64);
+    }
     select(&Differences { x, y }, k)
 }
 
@@ -393,6 +572,9 @@ pub fn kth_walsh_average(d: &[f64], k: usize) -> Option<f64> {
 
 /// As [`kth_walsh_average`], for input already sorted ascending.
 pub(crate) fn kth_walsh_average_sorted(d: &[f64], k: usize) -> Option<f64> {
+    if few_distinct(d) {
+        return select_runs(&RunWalsh::new(d), k as u64);
+    }
     select(&Walsh { d }, k)
 }
 
@@ -421,7 +603,12 @@ pub fn hl_shift(x: &[f64], y: &[f64]) -> Result<f64, StatsError> {
 /// As [`hl_shift`], for finite inputs already sorted ascending.
 pub(crate) fn hl_shift_sorted(x: &[f64], y: &[f64]) -> Result<f64, StatsError> {
     let count = x.len().saturating_mul(y.len());
-    median_of(&Differences { x, y }, count).ok_or(StatsError::TooFew { needed: 1, got: 0 })
+    let m = if few_distinct(x) && few_distinct(y) {
+        median_runs(&RunDifferences::new(x, y))
+    } else {
+        median_of(&Differences { x, y }, count)
+    };
+    m.ok_or(StatsError::TooFew { needed: 1, got: 0 })
 }
 
 /// Hodges–Lehmann one-sample location (pseudo-median): the median of the
@@ -434,7 +621,12 @@ pub fn hl_one_sample(d: &[f64]) -> Result<f64, StatsError> {
 /// As [`hl_one_sample`], for finite input already sorted ascending.
 pub(crate) fn hl_one_sample_sorted(d: &[f64]) -> Result<f64, StatsError> {
     let n = d.len();
-    median_of(&Walsh { d }, n * (n + 1) / 2).ok_or(StatsError::TooFew { needed: 1, got: 0 })
+    let m = if few_distinct(d) {
+        median_runs(&RunWalsh::new(d))
+    } else {
+        median_of(&Walsh { d }, n * (n + 1) / 2)
+    };
+    m.ok_or(StatsError::TooFew { needed: 1, got: 0 })
 }
 
 fn check(x: &[f64]) -> Result<(), StatsError> {
@@ -468,6 +660,90 @@ mod tests {
         }
         w.sort_unstable_by(f64::total_cmp);
         w
+    }
+
+    #[test]
+    fn the_run_form_selects_what_sorting_every_entry_gives() {
+        // Random samples with heavy ties, few ties and none, negative,
+        // zero and positive values, of unequal sizes: every order
+        // statistic the run form selects (each k for small samples) must
+        // be the brute-force sorted entry, bit for bit.
+        let mut rng = SplitMix64(0x005e_ed0f_0123);
+        let mut sample = |n: usize, levels: u64, offset: f64| -> Vec<f64> {
+            let mut v: Vec<f64> = (0..n)
+                .map(|_| (rng.next() % levels) as f64 * 0.1 + offset)
+                .collect();
+            v.sort_by(f64::total_cmp);
+            v
+        };
+        for (n1, n2, levels, off) in [
+            (1, 1, 1, 0.0),
+            (5, 3, 2, 0.0),
+            (17, 23, 4, -0.3),
+            (40, 31, 9, -1.0),
+            (60, 60, 1000, 5.0),
+            (33, 2, 3, -0.2),
+        ] {
+            let (x, y) = (sample(n1, levels, off), sample(n2, levels, 0.0));
+            let want = brute_diffs(&x, &y);
+            let m = RunDifferences::new(&x, &y);
+            assert_eq!(m.total(), want.len() as u64);
+            for (k, w) in want.iter().enumerate() {
+                let got = select_runs(&m, k as u64).unwrap();
+                assert_eq!(got.to_bits(), w.to_bits(), "{n1}×{n2}, k = {k}");
+            }
+            assert_eq!(select_runs(&m, want.len() as u64), None);
+            let want = brute_walsh(&x);
+            let m = RunWalsh::new(&x);
+            assert_eq!(m.total(), want.len() as u64);
+            for (k, w) in want.iter().enumerate() {
+                let got = select_runs(&m, k as u64).unwrap();
+                assert_eq!(got.to_bits(), w.to_bits(), "Walsh {n1}, k = {k}");
+            }
+        }
+    }
+
+    #[test]
+    fn large_tied_samples_take_the_run_form_with_the_same_results() {
+        // Above the threshold the estimates and interval ends come from the
+        // run form; the general selection is the reference.
+        let mut rng = SplitMix64(77);
+        let mut sample = |n: usize, levels: u64, offset: f64| -> Vec<f64> {
+            let mut v: Vec<f64> = (0..n)
+                .map(|_| (rng.next() % levels) as f64 * 0.5 + offset)
+                .collect();
+            v.sort_by(f64::total_cmp);
+            v
+        };
+        let (x, y) = (sample(3000, 40, -3.0), sample(2500, 50, 0.0));
+        assert!(few_distinct(&x) && few_distinct(&y));
+        let general = median_of(&Differences { x: &x, y: &y }, x.len() * y.len()).unwrap();
+        assert_eq!(
+            hl_shift_sorted(&x, &y).unwrap().to_bits(),
+            general.to_bits()
+        );
+        let general = median_of(&Walsh { d: &x }, x.len() * (x.len() + 1) / 2).unwrap();
+        assert_eq!(
+            hl_one_sample_sorted(&x).unwrap().to_bits(),
+            general.to_bits()
+        );
+        for k in [0, 1, 999, 3_750_000, 7_499_999] {
+            assert_eq!(
+                kth_pairwise_difference_sorted(&x, &y, k),
+                select(&Differences { x: &x, y: &y }, k),
+                "k = {k}"
+            );
+            assert_eq!(
+                kth_walsh_average_sorted(&x, k),
+                select(&Walsh { d: &x }, k),
+                "Walsh k = {k}"
+            );
+        }
+        // A sample holding −0.0 stays on the general path.
+        let mut z = x.clone();
+        z[0] = -0.0;
+        z.sort_by(f64::total_cmp);
+        assert!(!few_distinct(&z));
     }
 
     #[test]
