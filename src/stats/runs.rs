@@ -51,6 +51,36 @@ pub fn expand(runs: &[(f64, u64)]) -> Vec<f64> {
     out
 }
 
+/// Sorts `v` ascending by the total order by counting its distinct values,
+/// when it has at most one in `ratio`: one hashing pass, a sort of the
+/// distinct values, and one pass writing the runs back. Values equal
+/// under the total order have the same bits, so the result is the one
+/// any sort gives. Returns `false`, with `v` untouched, as soon as the
+/// distinct values pass that share (then a comparison sort is cheaper);
+/// the work lost is at most one pass over a `1/ratio` share of `v`.
+pub(crate) fn sort_by_counting(v: &mut [f64], ratio: usize) -> bool {
+    let limit = v.len() / ratio.max(1);
+    let mut counts: hashbrown::HashMap<u64, u64> = hashbrown::HashMap::new();
+    for x in v.iter() {
+        *counts.entry(x.to_bits()).or_insert(0) += 1;
+        if counts.len() > limit {
+            return false;
+        }
+    }
+    let mut runs: Vec<(f64, u64)> = counts
+        .into_iter()
+        .map(|(b, c)| (f64::from_bits(b), c))
+        .collect();
+    runs.sort_unstable_by(|a, b| a.0.total_cmp(&b.0));
+    let mut at = 0;
+    for (x, c) in runs {
+        let c = c as usize;
+        v[at..at + c].fill(x);
+        at += c;
+    }
+    true
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -63,6 +93,37 @@ mod tests {
         assert!(r[0].0.is_sign_negative() && r[0].1 == 1);
         assert_eq!(&r[1..], &[(0.0, 2), (1.5, 3), (2.0, 1)]);
         assert_eq!(of_sorted(&[]).count(), 0);
+    }
+
+    #[test]
+    fn counting_sorts_as_a_comparison_sort_does() {
+        // Ties, signed zeros, negatives, and a sample too distinct for the
+        // counting path (left untouched).
+        let mut state = 0x0dd_ba11u64;
+        let mut next = move || {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            state
+        };
+        for (n, levels) in [(0usize, 1u64), (1, 1), (1000, 7), (50_000, 300)] {
+            let v: Vec<f64> = (0..n)
+                .map(|_| match next() % levels {
+                    0 => -0.0,
+                    k => (k as f64 - levels as f64 / 2.0) * 0.25,
+                })
+                .collect();
+            let mut want = v.clone();
+            want.sort_by(f64::total_cmp);
+            let mut got = v.clone();
+            assert!(sort_by_counting(&mut got, 1));
+            let bits = |x: &[f64]| x.iter().map(|a| a.to_bits()).collect::<Vec<_>>();
+            assert_eq!(bits(&got), bits(&want), "{n} values, {levels} levels");
+        }
+        let distinct: Vec<f64> = (0..1000).map(|i| f64::from(i) * 0.5).rev().collect();
+        let mut v = distinct.clone();
+        assert!(!sort_by_counting(&mut v, 16));
+        assert_eq!(v, distinct);
     }
 
     #[test]
