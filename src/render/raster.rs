@@ -253,32 +253,66 @@ fn canonical(pdf: Vec<u8>) -> Vec<u8> {
     out
 }
 
+/// The PNG and PDF of each `(file, svg)`, in order. Each distinct SVG is
+/// converted once, the distinct ones in parallel and each one's two
+/// formats too; a repeat gets a copy of the same bytes.
+fn convert(figures: &[(&str, String)]) -> Vec<Result<(Vec<u8>, Vec<u8>)>> {
+    use rayon::prelude::*;
+    let mut first: std::collections::HashMap<&str, usize> = std::collections::HashMap::new();
+    let mut unique: Vec<(&str, &str)> = Vec::new();
+    let which: Vec<usize> = figures
+        .iter()
+        .map(|(file, svg)| {
+            *first.entry(svg.as_str()).or_insert_with(|| {
+                unique.push((file, svg.as_str()));
+                unique.len() - 1
+            })
+        })
+        .collect();
+    let converted: Vec<Result<(Vec<u8>, Vec<u8>)>> = unique
+        .par_iter()
+        .map(|(file, svg)| {
+            let (png, pdf) =
+                rayon::join(|| png(svg.as_bytes(), file), || pdf(svg.as_bytes(), file));
+            Ok((png?, pdf?))
+        })
+        .collect();
+    which.into_iter().map(|u| converted[u].clone()).collect()
+}
+
 /// The renderer: a PNG and a PDF for every SVG figure written before it.
 pub(crate) struct Raster;
 
 impl Renderer for Raster {
     fn render(&self, cx: &Context, done: &[Output]) -> Result<Vec<Output>> {
-        use rayon::prelude::*;
-        // Each figure is converted on its own, so the figures (and each
-        // one's two formats) share the cores; the list keeps figure order,
-        // so the outputs are the same whatever the thread count.
-        let each: Vec<Result<[Output; 2]>> = cx
+        // Each distinct drawing is converted once (hypotheses on the same
+        // comparison draw the same groups under different ids, which only
+        // the labels carry); the list keeps figure order, so the outputs
+        // are the same whatever the thread count.
+        let figures: Vec<(&str, String)> = cx
             .view
             .figures
-            .par_iter()
-            .filter_map(|f| Some((f, done.iter().find(|o| o.name == f.file)?)))
-            .map(|(f, svg)| {
-                let stem = f.file.strip_suffix(".svg").unwrap_or(&f.file);
-                let (png, pdf) =
-                    rayon::join(|| png(&svg.bytes, &f.file), || pdf(&svg.bytes, &f.file));
+            .iter()
+            .filter_map(|f| {
+                let svg = done.iter().find(|o| o.name == f.file)?;
+                let text = String::from_utf8_lossy(&svg.bytes);
+                Some((f.file.as_str(), super::svg::neutral_labels(&text, &f.id)))
+            })
+            .collect();
+        let each: Vec<Result<[Output; 2]>> = figures
+            .iter()
+            .zip(convert(&figures))
+            .map(|((file, _), converted)| {
+                let stem = file.strip_suffix(".svg").unwrap_or(file);
+                let (png, pdf) = converted?;
                 Ok([
                     Output {
                         name: format!("{stem}.png"),
-                        bytes: png?,
+                        bytes: png,
                     },
                     Output {
                         name: format!("{stem}.pdf"),
-                        bytes: pdf?,
+                        bytes: pdf,
                     },
                 ])
             })
@@ -296,6 +330,47 @@ mod tests {
     use super::*;
 
     const SVG: &str = r##"<svg width="16cm" height="4cm" viewBox="0 0 520 130" xmlns="http://www.w3.org/2000/svg"><rect x="10" y="10" width="100" height="50" fill="#0072B2"/><text x="150" y="60" font-family="sans-serif" font-size="20">Minutes <tspan font-style="italic">t</tspan></text></svg>"##;
+
+    #[test]
+    fn a_drawing_repeated_under_other_ids_is_converted_once_to_the_same_bytes() {
+        use crate::render::svg::{label_svg, neutral_labels};
+        let title = "Scores <desc id=\"h1-groups-desc\"> by arm";
+        let a = label_svg(SVG, "h1-groups", title, "Each dot is one value.");
+        let b = label_svg(SVG, "h12-groups", title, "Each dot is one value.");
+        let other = SVG.replace("Minutes", "Seconds");
+        let c = label_svg(&other, "h2-groups", title, "Each dot is one value.");
+        let (na, nb, nc) = (
+            neutral_labels(&a, "h1-groups"),
+            neutral_labels(&b, "h12-groups"),
+            neutral_labels(&c, "h2-groups"),
+        );
+        assert_eq!(na, nb);
+        assert_ne!(na, nc);
+        // The title's text (escaped) is left as it was.
+        assert!(na.contains("Scores &lt;desc id=&quot;h1-groups-desc&quot;&gt; by arm"));
+        // The ids are not drawn: the figure under its own id converts to
+        // the bytes of the neutral one.
+        assert_eq!(
+            png(a.as_bytes(), "a").unwrap(),
+            png(na.as_bytes(), "a").unwrap()
+        );
+        assert_eq!(
+            pdf(a.as_bytes(), "a").unwrap(),
+            pdf(na.as_bytes(), "a").unwrap()
+        );
+        let out = convert(&[("a.svg", na.clone()), ("b.svg", nb), ("c.svg", nc.clone())]);
+        let got: Vec<(Vec<u8>, Vec<u8>)> = out.into_iter().map(|r| r.unwrap()).collect();
+        let alone = |svg: &str| {
+            (
+                png(svg.as_bytes(), "x").unwrap(),
+                pdf(svg.as_bytes(), "x").unwrap(),
+            )
+        };
+        assert_eq!(got[0], alone(&na));
+        assert_eq!(got[1], got[0]);
+        assert_eq!(got[2], alone(&nc));
+        assert_ne!(got[2], got[0]);
+    }
 
     #[test]
     fn a_png_is_300_dpi_at_16_cm_and_the_same_every_time() {

@@ -158,7 +158,7 @@ fn xml_escape(s: &str) -> String {
 
 /// Puts `<title>` and `<desc>` first inside the `<svg>` element and marks
 /// it as an image labelled by them.
-fn label_svg(svg: &str, id: &str, title: &str, desc: &str) -> String {
+pub(crate) fn label_svg(svg: &str, id: &str, title: &str, desc: &str) -> String {
     let Some(end) = svg.find('>') else {
         return svg.to_string();
     };
@@ -169,6 +169,28 @@ fn label_svg(svg: &str, id: &str, title: &str, desc: &str) -> String {
         xml_escape(desc),
         &rest[1..]
     )
+}
+
+/// The SVG with the figure's own id in its labels (see [`label_svg`])
+/// replaced by one neutral id: the drawing as the rasterisers see it, the
+/// same for two figures that draw the same thing under different ids.
+/// Only the three places [`label_svg`] writes are touched (the title and
+/// description are escaped, so their text cannot hold these tags).
+pub(crate) fn neutral_labels(svg: &str, id: &str) -> String {
+    let neutral = "figure";
+    let mut out = svg.replacen(
+        &format!("aria-labelledby=\"{id}-title {id}-desc\">"),
+        &format!("aria-labelledby=\"{neutral}-title {neutral}-desc\">"),
+        1,
+    );
+    for part in ["title", "desc"] {
+        out = out.replacen(
+            &format!("<{part} id=\"{id}-{part}\">"),
+            &format!("<{part} id=\"{neutral}-{part}\">"),
+            1,
+        );
+    }
+    out
 }
 
 fn finite(v: &[f64]) -> Vec<f64> {
