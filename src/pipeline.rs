@@ -427,6 +427,11 @@ pub(crate) fn analyse_all(
                 Err(f) => Err(f),
             }
         })
+        .collect::<Vec<Result<_>>>()
+        // The first failing hypothesis in plan order, whichever thread met
+        // it first: rayon's collect into a `Result` returns any one of
+        // several errors ("the one returned is not deterministic").
+        .into_iter()
         .collect::<Result<Vec<_>>>()?;
     let mut hyps = Vec::new();
     let mut not_computed = Vec::new();

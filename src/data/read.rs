@@ -409,7 +409,11 @@ impl Job<'_> {
             .par_iter()
             .zip(firsts)
             .map(|((a, b), l)| self.chunk(&body[*a..*b], l))
-            .collect::<Result<Vec<Part>>>()?;
+            .collect::<Vec<Result<Part>>>();
+        // The first failure in file order, whichever thread met it first:
+        // rayon's collect into a `Result` returns any one of several
+        // errors ("the one returned is not deterministic", its docs say).
+        let parts = parts.into_iter().collect::<Result<Vec<Part>>>()?;
         Ok((parts, line - first_line))
     }
 
