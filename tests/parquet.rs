@@ -204,3 +204,50 @@ fn a_null_is_an_empty_cell_and_a_nan_is_the_text_nan() {
         "{err}"
     );
 }
+
+#[test]
+fn a_bad_cell_in_a_later_row_group_is_placed_by_its_row_in_the_file() {
+    // 100 rows in row groups of 37, decoded in parallel: the first bad
+    // cell in file order is reported, at its row in the whole file.
+    let c = Case::new();
+    let n = 100;
+    let point: Vec<&str> = (0..n)
+        .map(|i| if i % 2 == 0 { "kiosk" } else { "desk" })
+        .collect();
+    let seconds: Vec<String> = (0..n)
+        .map(|i| match i {
+            79 => "n/a".to_string(),
+            91 => "later".to_string(),
+            _ => format!("{}.5", 30 + i % 17),
+        })
+        .collect();
+    let batch = RecordBatch::try_from_iter(vec![
+        (
+            "point",
+            Arc::new(arrow_array::StringArray::from(point)) as ArrayRef,
+        ),
+        (
+            "seconds",
+            Arc::new(arrow_array::StringArray::from(seconds)) as ArrayRef,
+        ),
+        (
+            "entry",
+            Arc::new(arrow_array::StringArray::from(vec!["patron"; n])) as ArrayRef,
+        ),
+    ])
+    .unwrap();
+    let props = WriterProperties::builder()
+        .set_max_row_group_row_count(Some(37))
+        .build();
+    let file = std::fs::File::create(c.path().join("bad.parquet")).unwrap();
+    let mut w = ArrowWriter::try_new(file, batch.schema(), Some(props)).unwrap();
+    w.write(&batch).unwrap();
+    w.close().unwrap();
+    c.write("a.toml", &plan("bad.parquet"));
+    let a = c.attest(&["run", "--unlocked", "a.toml"]).code(1);
+    let err = String::from_utf8_lossy(&a.get_output().stderr).into_owned();
+    assert!(
+        err.starts_with("error: bad.parquet:80:2: column \"seconds\": \"n/a\" is not a number"),
+        "{err}"
+    );
+}

@@ -1,7 +1,8 @@
 //! Parquet files, read with the `parquet` crate into Arrow arrays.
 //!
 //! Only the columns the plan uses are decoded (a projection: the other
-//! columns' pages are never decompressed). Every value then goes through
+//! columns' pages are never decompressed), row groups in parallel, joined
+//! in file order as the chunks of a CSV file are. Every value then goes through
 //! the same [`Builder`] as a CSV cell or a spreadsheet cell, so a Parquet
 //! file and a CSV file with the same values give the same columns:
 //!
@@ -19,6 +20,7 @@
 //! column's number in the file's schema: `data/visits.parquet:1204:3`.
 
 use super::cell::{self, Builder, Problem};
+use super::read::Part;
 use super::{locate, LineMap, Table, Use};
 use crate::error::{Failure, Result};
 use crate::plan::DataSpec;
@@ -26,8 +28,11 @@ use arrow_array::cast::AsArray;
 use arrow_array::types::Float64Type;
 use arrow_array::{Array, ArrayRef};
 use arrow_schema::DataType;
-use parquet::arrow::arrow_reader::ParquetRecordBatchReaderBuilder;
+use parquet::arrow::arrow_reader::{
+    ArrowReaderMetadata, ArrowReaderOptions, ParquetRecordBatchReaderBuilder,
+};
 use parquet::arrow::ProjectionMask;
+use rayon::prelude::*;
 
 /// Rows decoded at a time.
 const BATCH: usize = 64 * 1024;
@@ -44,9 +49,10 @@ pub(crate) fn read_parquet(
             .in_file(display)
             .help("check that the file is a complete Parquet file (not still being written), or export the data as CSV")
     };
-    let builder = ParquetRecordBatchReaderBuilder::try_new(bytes::Bytes::from(bytes))
+    let data = bytes::Bytes::from(bytes);
+    let meta = ArrowReaderMetadata::load(&data, ArrowReaderOptions::default())
         .map_err(|e| unreadable(&e))?;
-    let header: Vec<String> = builder
+    let header: Vec<String> = meta
         .schema()
         .fields()
         .iter()
@@ -58,7 +64,7 @@ pub(crate) fn read_parquet(
         f.in_file(display)
     })?;
     for (k, u) in wanted.iter().enumerate() {
-        let t = builder.schema().field(index[k]).data_type();
+        let t = meta.schema().field(index[k]).data_type();
         if !readable(t) {
             return Err(Failure::input(format!(
                 "column \"{}\" of the Parquet file holds {t} values, which are neither numbers nor labels",
@@ -68,7 +74,7 @@ pub(crate) fn read_parquet(
             .help("use a column of numbers, text, booleans or dates, or export the data as CSV"));
         }
     }
-    let total = builder.metadata().file_metadata().num_rows();
+    let total = meta.metadata().file_metadata().num_rows();
     let max = super::read::MAX_ROWS;
     if usize::try_from(total).map_or(true, |n| n > max) {
         return Err(Failure::input(format!(
@@ -80,47 +86,72 @@ pub(crate) fn read_parquet(
     let mut roots: Vec<usize> = index.clone();
     roots.sort_unstable();
     roots.dedup();
-    let mask = ProjectionMask::roots(builder.parquet_schema(), roots);
-    let reader = builder
-        .with_projection(mask)
-        .with_batch_size(BATCH)
-        .build()
-        .map_err(|e| unreadable(&e))?;
-    let mut b = Builder::new(wanted, spec.decimal, &spec.missing);
-    let mut rows = 0usize;
-    for batch in reader {
-        let batch = batch.map_err(|e| unreadable(&e))?;
-        for (k, u) in wanted.iter().enumerate() {
-            let col = batch.column_by_name(&u.name).ok_or_else(|| {
-                Failure::internal(format!(
-                    "column \"{}\" is missing from a decoded batch",
-                    u.name
-                ))
-                .in_file(display)
-            })?;
-            push_column(&mut b, k, col).map_err(|(row, p, text)| {
-                cell::failure(&p, &u.name, text.as_bytes(), spec.decimal).at(
-                    display,
-                    rows + row + 1,
-                    Some(index[k] + 1),
-                )
-            })?;
-        }
-        rows += batch.num_rows();
+    let mask = ProjectionMask::roots(meta.parquet_schema(), roots);
+    // Row groups are decoded in parallel, each into its own columns, and
+    // joined in file order as CSV chunks are: the same table, the first
+    // bad cell in file order reported.
+    let groups = meta.metadata().num_row_groups();
+    let mut starts = Vec::with_capacity(groups);
+    let mut start = 0usize;
+    for g in 0..groups {
+        starts.push(start);
+        start += usize::try_from(meta.metadata().row_group(g).num_rows()).unwrap_or(0);
     }
+    let parts: Vec<Result<Part>> = (0..groups)
+        .into_par_iter()
+        .map(|g| {
+            let reader =
+                ParquetRecordBatchReaderBuilder::new_with_metadata(data.clone(), meta.clone())
+                    .with_projection(mask.clone())
+                    .with_row_groups(vec![g])
+                    .with_batch_size(BATCH)
+                    .build()
+                    .map_err(|e| unreadable(&e))?;
+            let mut b = Builder::new(wanted, spec.decimal, &spec.missing);
+            let mut rows = 0usize;
+            for batch in reader {
+                let batch = batch.map_err(|e| unreadable(&e))?;
+                for (k, u) in wanted.iter().enumerate() {
+                    let col = batch.column_by_name(&u.name).ok_or_else(|| {
+                        Failure::internal(format!(
+                            "column \"{}\" is missing from a decoded batch",
+                            u.name
+                        ))
+                        .in_file(display)
+                    })?;
+                    push_column(&mut b, k, col).map_err(|(row, p, text)| {
+                        cell::failure(&p, &u.name, text.as_bytes(), spec.decimal).at(
+                            display,
+                            starts[g] + rows + row + 1,
+                            Some(index[k] + 1),
+                        )
+                    })?;
+                }
+                rows += batch.num_rows();
+            }
+            Ok(Part {
+                rows,
+                columns: b.finish(wanted, &index),
+                lines: LineMap {
+                    first: starts[g] + 1,
+                    jumps: Vec::new(),
+                },
+            })
+        })
+        .collect();
+    let parts = parts.into_iter().collect::<Result<Vec<Part>>>()?;
+    let rows: usize = parts.iter().map(|p| p.rows).sum();
     if rows == 0 {
         return Err(Failure::input("the data file has no data rows")
             .in_file(display)
             .help("the file needs one row per observation"));
     }
+    let (columns, lines) = super::read::join(parts);
     Ok(Table {
         rows,
         source: display.to_string(),
-        columns: b.finish(wanted, &index),
-        lines: LineMap {
-            first: 1,
-            jumps: Vec::new(),
-        },
+        columns,
+        lines,
     })
 }
 

@@ -376,10 +376,10 @@ struct Job<'a> {
 
 /// One chunk's rows, its columns finished (their lookup tables dropped
 /// as soon as the chunk is read, not kept until every chunk is).
-struct Part {
-    rows: usize,
-    columns: HashMap<String, super::Column>,
-    lines: LineMap,
+pub(super) struct Part {
+    pub(super) rows: usize,
+    pub(super) columns: HashMap<String, super::Column>,
+    pub(super) lines: LineMap,
 }
 
 impl Job<'_> {
@@ -592,7 +592,7 @@ struct Gathered {
 
 /// Joins the chunks in order; text codes of later chunks are renumbered so
 /// levels stay in order of first appearance in the file.
-fn join(parts: Vec<Part>) -> (HashMap<String, super::Column>, LineMap) {
+pub(super) fn join(parts: Vec<Part>) -> (HashMap<String, super::Column>, LineMap) {
     let mut lines: Option<LineMap> = None;
     let mut rows = 0;
     // Every chunk has the same columns; each is gathered from all chunks.
