@@ -106,8 +106,7 @@ struct Tie {
 /// The tie groups of a sample, ascending: `(value, count)`, equal by
 /// `==` (so `-0.0` ties with `0.0`, as ranks require).
 fn sorted_runs(x: &[f64]) -> Vec<(f64, u64)> {
-    let mut s = x.to_vec();
-    s.sort_unstable_by(f64::total_cmp);
+    let s = super::sorted(x);
     let mut out = Vec::new();
     for_each_tie_group(s.iter().copied(), |start, len| {
         out.push((s[start], len as u64))

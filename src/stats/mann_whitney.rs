@@ -54,8 +54,21 @@ pub fn mann_whitney(
 /// Doubled midranks (integers) of the pooled sample of two ascending
 /// groups, in merge order.
 pub(crate) fn doubled_pooled_ranks(x: &[f64], y: &[f64]) -> Vec<u64> {
-    let mut pooled: Vec<f64> = x.iter().chain(y).copied().collect();
-    pooled.sort_unstable_by(f64::total_cmp);
+    // One merge of the two sorted groups (values equal under the total
+    // order have the same bits, so this is the sorted pooled sample).
+    let mut pooled: Vec<f64> = Vec::with_capacity(x.len() + y.len());
+    let (mut i, mut j) = (0, 0);
+    while i < x.len() && j < y.len() {
+        if x[i].total_cmp(&y[j]).is_le() {
+            pooled.push(x[i]);
+            i += 1;
+        } else {
+            pooled.push(y[j]);
+            j += 1;
+        }
+    }
+    pooled.extend_from_slice(&x[i..]);
+    pooled.extend_from_slice(&y[j..]);
     let mut scores = Vec::with_capacity(pooled.len());
     for_each_tie_group(pooled.iter().copied(), |start, len| {
         let r2 = (2 * start + len + 1) as u64;
@@ -124,7 +137,9 @@ pub fn mann_whitney_with(
     let tail = tail_alpha(level, alt);
     let exact = if ties == 0.0 {
         mann_whitney_exact(n1, n2).map(|d| (d, 1, RankPMethod::Exact))
-    } else if options.exact_max_cells > 0 {
+    } else if options.exact_max_cells > 0 && super::rank_exact::mw_exact_feasible(n1, n2) {
+        // (Beyond those sizes the conditional count is never tried, so
+        // the pooled ranks are not built.)
         let scores = doubled_pooled_ranks(&xs, &ys);
         rank_sum_conditional(&scores, n1, options.exact_max_cells)
             .map(|d| (d, 2, RankPMethod::ExactWithTies))
@@ -179,6 +194,47 @@ pub fn mann_whitney_with(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn pooled_ranks_of_merged_groups_are_those_of_the_sorted_pool() {
+        // Reference: sort the concatenation and give each tie group its
+        // doubled midrank, 2·start + len + 1 (common practice midranks).
+        let mut state = 0x51_7cc1_b727_220au64;
+        let mut next = move || {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            state
+        };
+        for (n1, n2, levels) in [(0usize, 3usize, 2u64), (5, 0, 3), (7, 9, 3), (40, 55, 11)] {
+            let mut draw = |n: usize| {
+                let mut v: Vec<f64> = (0..n)
+                    .map(|_| match next() % levels {
+                        0 => -0.0,
+                        1 => 0.0,
+                        k => k as f64 * 0.5 - 2.0,
+                    })
+                    .collect();
+                v.sort_by(f64::total_cmp);
+                v
+            };
+            let (x, y) = (draw(n1), draw(n2));
+            let mut pool: Vec<f64> = x.iter().chain(&y).copied().collect();
+            pool.sort_by(f64::total_cmp);
+            let mut want = vec![0u64; pool.len()];
+            let mut start = 0;
+            while start < pool.len() {
+                let mut end = start + 1;
+                while end < pool.len() && pool[end] == pool[start] {
+                    end += 1;
+                }
+                let r2 = (2 * start + (end - start) + 1) as u64;
+                want[start..end].fill(r2);
+                start = end;
+            }
+            assert_eq!(doubled_pooled_ranks(&x, &y), want, "{n1} and {n2}");
+        }
+    }
 
     #[test]
     fn u_counts_ties_as_half() {
