@@ -64,12 +64,17 @@ fn write_parquet(path: &std::path::Path, group: usize) {
         ("entry", Arc::new(entry.finish())),
     ];
     let batch = RecordBatch::try_from_iter(cols).unwrap();
+    write_batch(path, &batch, Some(group));
+}
+
+/// Writes `batch` as a Parquet file, in row groups of at most `group` rows.
+fn write_batch(path: &std::path::Path, batch: &RecordBatch, group: Option<usize>) {
     let props = WriterProperties::builder()
-        .set_max_row_group_row_count(Some(group))
+        .set_max_row_group_row_count(group)
         .build();
     let file = std::fs::File::create(path).unwrap();
     let mut w = ArrowWriter::try_new(file, batch.schema(), Some(props)).unwrap();
-    w.write(&batch).unwrap();
+    w.write(batch).unwrap();
     w.close().unwrap();
 }
 
@@ -146,10 +151,7 @@ fn unusable_parquet_files_and_columns_are_refused() {
         ),
     ])
     .unwrap();
-    let file = std::fs::File::create(c.path().join("nested.parquet")).unwrap();
-    let mut w = ArrowWriter::try_new(file, batch.schema(), None).unwrap();
-    w.write(&batch).unwrap();
-    w.close().unwrap();
+    write_batch(&c.path().join("nested.parquet"), &batch, None);
     c.write("a.toml", &plan("nested.parquet"));
     let a = c.attest(&["run", "--unlocked", "a.toml"]).code(1);
     let err = String::from_utf8_lossy(&a.get_output().stderr).into_owned();
@@ -185,10 +187,7 @@ fn a_null_is_an_empty_cell_and_a_nan_is_the_text_nan() {
         ("entry", entry),
     ])
     .unwrap();
-    let file = std::fs::File::create(c.path().join("few.parquet")).unwrap();
-    let mut w = ArrowWriter::try_new(file, batch.schema(), None).unwrap();
-    w.write(&batch).unwrap();
-    w.close().unwrap();
+    write_batch(&c.path().join("few.parquet"), &batch, None);
     c.write("a.toml", &plan("few.parquet"));
     let r = results(&c);
     let flow = &r["hypotheses"][0]["rows"];
@@ -236,13 +235,7 @@ fn a_bad_cell_in_a_later_row_group_is_placed_by_its_row_in_the_file() {
         ),
     ])
     .unwrap();
-    let props = WriterProperties::builder()
-        .set_max_row_group_row_count(Some(37))
-        .build();
-    let file = std::fs::File::create(c.path().join("bad.parquet")).unwrap();
-    let mut w = ArrowWriter::try_new(file, batch.schema(), Some(props)).unwrap();
-    w.write(&batch).unwrap();
-    w.close().unwrap();
+    write_batch(&c.path().join("bad.parquet"), &batch, Some(37));
     c.write("a.toml", &plan("bad.parquet"));
     let a = c.attest(&["run", "--unlocked", "a.toml"]).code(1);
     let err = String::from_utf8_lossy(&a.get_output().stderr).into_owned();

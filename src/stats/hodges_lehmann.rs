@@ -662,6 +662,21 @@ mod tests {
         w
     }
 
+    /// `n` values on a grid of `levels` steps of `step` from `offset`, sorted.
+    fn tied_sample(
+        rng: &mut SplitMix64,
+        n: usize,
+        levels: u64,
+        step: f64,
+        offset: f64,
+    ) -> Vec<f64> {
+        let mut v: Vec<f64> = (0..n)
+            .map(|_| (rng.next() % levels) as f64 * step + offset)
+            .collect();
+        v.sort_by(f64::total_cmp);
+        v
+    }
+
     #[test]
     fn the_run_form_selects_what_sorting_every_entry_gives() {
         // Random samples with heavy ties, few ties and none, negative,
@@ -669,13 +684,7 @@ mod tests {
         // statistic the run form selects (each k for small samples) must
         // be the brute-force sorted entry, bit for bit.
         let mut rng = SplitMix64(0x005e_ed0f_0123);
-        let mut sample = |n: usize, levels: u64, offset: f64| -> Vec<f64> {
-            let mut v: Vec<f64> = (0..n)
-                .map(|_| (rng.next() % levels) as f64 * 0.1 + offset)
-                .collect();
-            v.sort_by(f64::total_cmp);
-            v
-        };
+        let mut sample = |n, levels, offset| tied_sample(&mut rng, n, levels, 0.1, offset);
         for (n1, n2, levels, off) in [
             (1, 1, 1, 0.0),
             (5, 3, 2, 0.0),
@@ -708,13 +717,7 @@ mod tests {
         // Above the threshold the estimates and interval ends come from the
         // run form; the general selection is the reference.
         let mut rng = SplitMix64(77);
-        let mut sample = |n: usize, levels: u64, offset: f64| -> Vec<f64> {
-            let mut v: Vec<f64> = (0..n)
-                .map(|_| (rng.next() % levels) as f64 * 0.5 + offset)
-                .collect();
-            v.sort_by(f64::total_cmp);
-            v
-        };
+        let mut sample = |n, levels, offset| tied_sample(&mut rng, n, levels, 0.5, offset);
         let (x, y) = (sample(3000, 40, -3.0), sample(2500, 50, 0.0));
         assert!(few_distinct(&x) && few_distinct(&y));
         let general = median_of(&Differences { x: &x, y: &y }, x.len() * y.len()).unwrap();

@@ -199,13 +199,8 @@ mod tests {
     fn pooled_ranks_of_merged_groups_are_those_of_the_sorted_pool() {
         // Reference: sort the concatenation and give each tie group its
         // doubled midrank, 2·start + len + 1 (common practice midranks).
-        let mut state = 0x51_7cc1_b727_220au64;
-        let mut next = move || {
-            state ^= state << 13;
-            state ^= state >> 7;
-            state ^= state << 17;
-            state
-        };
+        let mut rng = crate::stats::hodges_lehmann::SplitMix64(0x51_7cc1_b727_220a);
+        let mut next = move || rng.next();
         for (n1, n2, levels) in [(0usize, 3usize, 2u64), (5, 0, 3), (7, 9, 3), (40, 55, 11)] {
             let mut draw = |n: usize| {
                 let mut v: Vec<f64> = (0..n)

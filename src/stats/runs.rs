@@ -99,13 +99,8 @@ mod tests {
     fn counting_sorts_as_a_comparison_sort_does() {
         // Ties, signed zeros, negatives, and a sample too distinct for the
         // counting path (left untouched).
-        let mut state = 0x0dd_ba11u64;
-        let mut next = move || {
-            state ^= state << 13;
-            state ^= state >> 7;
-            state ^= state << 17;
-            state
-        };
+        let mut rng = crate::stats::hodges_lehmann::SplitMix64(0x0dd_ba11);
+        let mut next = move || rng.next();
         for (n, levels) in [(0usize, 1u64), (1, 1), (1000, 7), (50_000, 300)] {
             let v: Vec<f64> = (0..n)
                 .map(|_| match next() % levels {
