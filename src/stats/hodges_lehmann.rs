@@ -398,8 +398,12 @@ struct RunDifferences {
 }
 
 impl RunDifferences {
+    #[cfg(test)]
     fn new(x: &[f64], y: &[f64]) -> Self {
-        let (x, y): (Vec<_>, Vec<_>) = (runs_of(x), runs_of(y));
+        Self::of_runs(runs_of(x), runs_of(y))
+    }
+
+    fn of_runs(x: Vec<(f64, u64)>, y: Vec<(f64, u64)>) -> Self {
         let mut y_from = vec![0u64; y.len() + 1];
         for b in (0..y.len()).rev() {
             y_from[b] = y_from[b + 1] + y[b].1;
@@ -440,8 +444,12 @@ struct RunWalsh {
 }
 
 impl RunWalsh {
+    #[cfg(test)]
     fn new(d: &[f64]) -> Self {
-        let d = runs_of(d);
+        Self::of_runs(runs_of(d))
+    }
+
+    fn of_runs(d: Vec<(f64, u64)>) -> Self {
         let mut before = vec![0u64; d.len() + 1];
         for b in 0..d.len() {
             before[b + 1] = before[b] + d[b].1;
@@ -477,22 +485,32 @@ impl RunMatrix for RunWalsh {
     }
 }
 
+#[cfg(test)]
 fn runs_of(sorted: &[f64]) -> Vec<(f64, u64)> {
     super::runs::of_sorted(sorted).collect()
 }
 
-/// Whether the run form pays for a sorted sample: at most one distinct
-/// value in 16 (64 short walks then cost less than the general
-/// selection's few long sweeps), and no value that could make an entry
+/// The runs of a sorted sample, built once, when the run form pays for
+/// it (`None` as soon as it does not): at most one distinct value in 16
+/// (64 short walks then cost less than the general selection's few long
+/// sweeps), and no value that could make an entry
 /// −0.0 (−0.0 itself, or a negative value so small that halving it
 /// rounds to −0.0), so that the zero the bisection lands on is +0.0, as
 /// the entries' zero is.
-fn few_distinct(sorted: &[f64]) -> bool {
+fn few_runs(sorted: &[f64]) -> Option<Vec<(f64, u64)>> {
     let tiny_negative = |v: &f64| v.is_sign_negative() && *v > -1e-300;
     if sorted.len() < 64 || sorted.iter().any(tiny_negative) {
-        return false;
+        return None;
     }
-    super::runs::of_sorted(sorted).count() * 16 <= sorted.len()
+    let most = sorted.len() / 16;
+    let mut runs = Vec::new();
+    for r in super::runs::of_sorted(sorted) {
+        if runs.len() == most {
+            return None;
+        }
+        runs.push(r);
+    }
+    Some(runs)
 }
 
 /// Maps doubles to integers in their total order, and back.
@@ -526,7 +544,7 @@ fn select_runs(m: &impl RunMatrix, k: u64) -> Option<f64> {
         }
     }
     // −0.0 and +0.0 count alike; the entries' zero is +0.0 (see
-    // [`few_distinct`]).
+    // [`few_runs`]).
     Some(from_key(lo) + 0.0)
 }
 
@@ -557,8 +575,8 @@ pub fn kth_pairwise_difference(x: &[f64], y: &[f64], k: usize) -> Option<f64> {
 
 /// As [`kth_pairwise_difference`], for inputs already sorted ascending.
 pub(crate) fn kth_pairwise_difference_sorted(x: &[f64], y: &[f64], k: usize) -> Option<f64> {
-    if few_distinct(x) && few_distinct(y) {
-        return select_runs(&RunDifferences::new(x, y), k as u64);
+    if let (Some(rx), Some(ry)) = (few_runs(x), few_runs(y)) {
+        return select_runs(&RunDifferences::of_runs(rx, ry), k as u64);
     }
     select(&Differences { x, y }, k)
 }
@@ -572,8 +590,8 @@ pub fn kth_walsh_average(d: &[f64], k: usize) -> Option<f64> {
 
 /// As [`kth_walsh_average`], for input already sorted ascending.
 pub(crate) fn kth_walsh_average_sorted(d: &[f64], k: usize) -> Option<f64> {
-    if few_distinct(d) {
-        return select_runs(&RunWalsh::new(d), k as u64);
+    if let Some(rd) = few_runs(d) {
+        return select_runs(&RunWalsh::of_runs(rd), k as u64);
     }
     select(&Walsh { d }, k)
 }
@@ -603,8 +621,8 @@ pub fn hl_shift(x: &[f64], y: &[f64]) -> Result<f64, StatsError> {
 /// As [`hl_shift`], for finite inputs already sorted ascending.
 pub(crate) fn hl_shift_sorted(x: &[f64], y: &[f64]) -> Result<f64, StatsError> {
     let count = x.len().saturating_mul(y.len());
-    let m = if few_distinct(x) && few_distinct(y) {
-        median_runs(&RunDifferences::new(x, y))
+    let m = if let (Some(rx), Some(ry)) = (few_runs(x), few_runs(y)) {
+        median_runs(&RunDifferences::of_runs(rx, ry))
     } else {
         median_of(&Differences { x, y }, count)
     };
@@ -621,8 +639,8 @@ pub fn hl_one_sample(d: &[f64]) -> Result<f64, StatsError> {
 /// As [`hl_one_sample`], for finite input already sorted ascending.
 pub(crate) fn hl_one_sample_sorted(d: &[f64]) -> Result<f64, StatsError> {
     let n = d.len();
-    let m = if few_distinct(d) {
-        median_runs(&RunWalsh::new(d))
+    let m = if let Some(rd) = few_runs(d) {
+        median_runs(&RunWalsh::of_runs(rd))
     } else {
         median_of(&Walsh { d }, n * (n + 1) / 2)
     };
@@ -719,7 +737,7 @@ mod tests {
         let mut rng = SplitMix64(77);
         let mut sample = |n, levels, offset| tied_sample(&mut rng, n, levels, 0.5, offset);
         let (x, y) = (sample(3000, 40, -3.0), sample(2500, 50, 0.0));
-        assert!(few_distinct(&x) && few_distinct(&y));
+        assert!(few_runs(&x).is_some() && few_runs(&y).is_some());
         let general = median_of(&Differences { x: &x, y: &y }, x.len() * y.len()).unwrap();
         assert_eq!(
             hl_shift_sorted(&x, &y).unwrap().to_bits(),
@@ -746,7 +764,7 @@ mod tests {
         let mut z = x.clone();
         z[0] = -0.0;
         z.sort_by(f64::total_cmp);
-        assert!(!few_distinct(&z));
+        assert!(few_runs(&z).is_none());
     }
 
     #[test]
